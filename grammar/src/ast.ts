@@ -1,0 +1,246 @@
+// The typed syntax tree of a SPICE netlist. Every node carries its exact
+// source range so that diagnostics, hovers and edits land where the user wrote.
+// The grammar knows nothing of circuits: element lines keep their fields in a
+// generic form, and `server/src/netlist` reads them per element letter.
+
+/** A position in the text: 0-based line and UTF-16 column (as LSP counts), and the offset. */
+export interface Position {
+  line: number;
+  column: number;
+  offset: number;
+}
+
+export interface Range {
+  start: Position;
+  end: Position;
+}
+
+export type Severity = 'error' | 'warning' | 'info';
+
+/** A problem found while reading the text. `code` is a rule id, e.g. `syntax`. */
+export interface ParseDiagnostic {
+  severity: Severity;
+  code: string;
+  message: string;
+  range: Range;
+}
+
+// ---------------------------------------------------------------- expressions
+
+export type Expr =
+  | { kind: 'num'; value: number; text: string; range: Range }
+  | { kind: 'ident'; name: string; range: Range }
+  | { kind: 'unary'; op: '-' | '+' | '!'; operand: Expr; range: Range }
+  | {
+      kind: 'binary';
+      op: '+' | '-' | '*' | '/' | '^' | '**' | '%' | '==' | '!=' | '<' | '<=' | '>' | '>=' | '&&' | '||';
+      left: Expr;
+      right: Expr;
+      range: Range;
+    }
+  | { kind: 'ternary'; condition: Expr; whenTrue: Expr; whenFalse: Expr; range: Range }
+  | { kind: 'call'; name: string; args: Expr[]; range: Range };
+
+// --------------------------------------------------------------------- fields
+// The words of an element line or of a dot command, classified but not interpreted.
+
+/** A bare word: node name, model name, keyword (`DC`, `off`, `params:`), as written. */
+export interface WordField {
+  kind: 'word';
+  text: string;
+  range: Range;
+}
+
+/** A numeric literal as SPICE reads it (`4.7k`, `1uF`, `10`); `text` is kept so `1` can also be a node name. */
+export interface NumberField {
+  kind: 'number';
+  text: string;
+  /** The value a SPICE engine reads: leading number times scale factor; the rest of the word ignored. */
+  value: number;
+  range: Range;
+}
+
+/** A `{…}` or `'…'` expression. `expr` is undefined when its text does not parse (a diagnostic says why). */
+export interface ExpressionField {
+  kind: 'expression';
+  text: string;
+  expr: Expr | undefined;
+  range: Range;
+}
+
+/** `key=value`; the value may itself be a group, e.g. `ic=(1,2)`. */
+export interface AssignField {
+  kind: 'assign';
+  key: WordField;
+  value: Field;
+  range: Range;
+}
+
+/** A parenthesised list, with the word before it when there is one: `SIN(0 1 1k)`, `v(out)`, `(is=1e-14)`. */
+export interface GroupField {
+  kind: 'group';
+  name: WordField | undefined;
+  items: Field[];
+  range: Range;
+}
+
+export type Field = WordField | NumberField | ExpressionField | AssignField | GroupField;
+
+// ----------------------------------------------------------------- statements
+
+export interface InlineComment {
+  /** The text after `;` or ` $`, without the marker. */
+  text: string;
+  range: Range;
+}
+
+interface StatementBase {
+  range: Range;
+  /** An inline comment at the end of the statement's (last) line. */
+  comment?: InlineComment;
+}
+
+export interface TitleStatement extends StatementBase {
+  kind: 'title';
+  text: string;
+}
+
+/** A `*` comment line. `text` is everything after the `*`. pnlint directives are comments: `*pnlint: …`. */
+export interface CommentStatement extends StatementBase {
+  kind: 'comment';
+  text: string;
+}
+
+/** Any element line: R, C, L, K, V, I, E, F, G, H, B, D, Q, M, J, S, W, X, T, A, … */
+export interface ElementStatement extends StatementBase {
+  kind: 'element';
+  name: WordField;
+  /** The first letter of the name, upper-cased: the element's type. */
+  letter: string;
+  fields: Field[];
+}
+
+export interface ModelStatement extends StatementBase {
+  kind: 'model';
+  name: WordField;
+  type: WordField;
+  params: AssignField[];
+  /** Fields that are not `key=value` (a flag such as `level 1` written without `=`). */
+  extra: Field[];
+}
+
+export interface SubcktStatement extends StatementBase {
+  kind: 'subckt';
+  name: WordField;
+  ports: WordField[];
+  /** Defaults from `params:` (or bare `key=value` after the ports). */
+  params: AssignField[];
+  body: Statement[];
+  /** The `.ends` line's range; undefined when it is missing (a diagnostic says so). */
+  ends: Range | undefined;
+}
+
+export interface ParamStatement extends StatementBase {
+  kind: 'param';
+  assigns: AssignField[];
+}
+
+export interface FuncStatement extends StatementBase {
+  kind: 'func';
+  name: WordField;
+  args: WordField[];
+  body: ExpressionField | undefined;
+}
+
+/** `.include path` / `.inc path`. */
+export interface IncludeStatement extends StatementBase {
+  kind: 'include';
+  path: string;
+  pathRange: Range;
+}
+
+/** `.lib path section`: pull one section out of a library file. */
+export interface LibReferenceStatement extends StatementBase {
+  kind: 'libReference';
+  path: string;
+  pathRange: Range;
+  section: WordField;
+}
+
+/** `.lib section` … `.endl`: a section defined in a library file. */
+export interface LibSectionStatement extends StatementBase {
+  kind: 'libSection';
+  name: WordField;
+  body: Statement[];
+  endl: Range | undefined;
+}
+
+export interface GlobalStatement extends StatementBase {
+  kind: 'global';
+  nodes: WordField[];
+}
+
+export interface IfBranch {
+  /** undefined for `.else`. */
+  condition: ExpressionField | undefined;
+  body: Statement[];
+  range: Range;
+}
+
+export interface IfStatement extends StatementBase {
+  kind: 'if';
+  branches: IfBranch[];
+  endif: Range | undefined;
+}
+
+/** `.control` … `.endc`, kept opaque: it is a script for the simulator's shell, not circuit. */
+export interface ControlStatement extends StatementBase {
+  kind: 'control';
+  text: string;
+}
+
+export interface EndStatement extends StatementBase {
+  kind: 'end';
+}
+
+/**
+ * Every other dot command, known or not: `.options`, `.temp`, `.ic`, `.nodeset`,
+ * `.op`, `.dc`, `.ac`, `.tran`, `.meas`, `.save`, `.print`, `.plot`, …
+ * `command` is lower-cased without the dot, with aliases folded (`option` → `options`,
+ * `measure` → `meas`). `known` is false for a command the grammar does not know (a warning).
+ */
+export interface DotStatement extends StatementBase {
+  kind: 'dot';
+  command: string;
+  commandRange: Range;
+  known: boolean;
+  fields: Field[];
+}
+
+export type Statement =
+  | TitleStatement
+  | CommentStatement
+  | ElementStatement
+  | ModelStatement
+  | SubcktStatement
+  | ParamStatement
+  | FuncStatement
+  | IncludeStatement
+  | LibReferenceStatement
+  | LibSectionStatement
+  | GlobalStatement
+  | IfStatement
+  | ControlStatement
+  | EndStatement
+  | DotStatement;
+
+export interface ParseOptions {
+  /** Included and library files have no title line. Default false (a top-level file: line 1 is its title). */
+  isInclude?: boolean;
+}
+
+export interface ParseResult {
+  /** Top-level statements in source order; subcircuit, `.lib` section and `.if` bodies are nested. */
+  statements: Statement[];
+  diagnostics: ParseDiagnostic[];
+}

@@ -1,0 +1,3 @@
+export * from './ast.js';
+export * from './values.js';
+export { parse } from './parser.js';

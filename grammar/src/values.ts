@@ -1,0 +1,75 @@
+// One value reader for the whole project: how a SPICE engine reads a number.
+// Scale factors from the SPICE3 user's manual (Quarles, 1989): T G MEG K MIL M U N P F,
+// in any case; `M` is milli and `MEG` mega. Letters after the scale factor (units such
+// as `Ohm`, `F`, `V`) are ignored, and so is everything else after the number — which
+// is how `4k7` becomes 4 kΩ in a SPICE engine.
+
+export const SCALE_FACTORS: Readonly<Record<string, number>> = {
+  t: 1e12,
+  g: 1e9,
+  meg: 1e6,
+  k: 1e3,
+  mil: 25.4e-6,
+  m: 1e-3,
+  u: 1e-6,
+  n: 1e-9,
+  p: 1e-12,
+  f: 1e-15,
+};
+
+export interface SpiceNumber {
+  /** The value a SPICE engine reads. */
+  value: number;
+  /** The numeric part as written, e.g. `4.7`, `1e-3`. */
+  mantissa: string;
+  /** The scale factor as written (`k`, `Meg`, …), or empty. */
+  scale: string;
+  /** What follows, which engines ignore (`Ohm`, `F`, or `7` in `4k7`). */
+  ignored: string;
+}
+
+const NUMBER_PREFIX = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?/;
+
+/** Reads `text` as a SPICE number; undefined when it does not start with one. */
+export function readSpiceNumber(text: string): SpiceNumber | undefined {
+  const match = NUMBER_PREFIX.exec(text);
+  if (!match) return undefined;
+  const mantissa = match[0];
+  let rest = text.slice(mantissa.length);
+  let scale = '';
+  const lower = rest.toLowerCase();
+  if (lower.startsWith('meg')) scale = rest.slice(0, 3);
+  else if (lower.startsWith('mil')) scale = rest.slice(0, 3);
+  else if (rest.length > 0 && 'tgkmunpf'.includes(lower[0]!)) scale = rest.slice(0, 1);
+  rest = rest.slice(scale.length);
+  const factor = scale ? SCALE_FACTORS[scale.toLowerCase()]! : 1;
+  return { value: Number(mantissa) * factor, mantissa, scale, ignored: rest };
+}
+
+/**
+ * True when the ignored tail holds a digit: `4k7`, `2R2`, `22x0k`. The engine's reading
+ * then differs from what the writer most likely meant.
+ */
+export function isAmbiguousNumber(reading: SpiceNumber): boolean {
+  return /\d/.test(reading.ignored);
+}
+
+// IEC 60062 marking code: the letter stands where the decimal point goes.
+// Resistors: R (×1), K (×1e3), M (×1e6), G (×1e9), T (×1e12).
+// Capacitors: p, n, u/µ, m (lower case m is milli here).
+const RESISTOR_MARKING: Readonly<Record<string, number>> = { r: 1, k: 1e3, m: 1e6, g: 1e9, t: 1e12 };
+const CAPACITOR_MARKING: Readonly<Record<string, number>> = { p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, m: 1e-3 };
+
+/**
+ * Reads `text` as an IEC 60062 marking code (`4k7` = 4.7e3, `R47` = 0.47, `4n7` = 4.7e-9).
+ * `elementLetter` picks the resistor or capacitor letters; undefined when it is not a code.
+ */
+export function readMarkingCode(text: string, elementLetter: string): number | undefined {
+  const match = /^(\d*)([a-zµ])(\d+)$/i.exec(text.replace(/(ohm|Ω|f)$/i, ''));
+  if (!match) return undefined;
+  const [, whole, letter, fraction] = match;
+  const table = elementLetter.toUpperCase() === 'C' ? CAPACITOR_MARKING : RESISTOR_MARKING;
+  const factor = table[letter!.toLowerCase()];
+  if (factor === undefined) return undefined;
+  return Number(`${whole || '0'}.${fraction}`) * factor;
+}
