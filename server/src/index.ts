@@ -3,3 +3,4 @@ export * from './netlist/circuit.js';
 export * from './sim/types.js';
 export * from './findings.js';
 export * from './settings.js';
+export * from './analysis.js';
