@@ -1,69 +1,276 @@
-// Temporary dense LU with partial pivoting, behind the final API, so that the
-// solver can be built against it while the sparse factorisation is written.
+// Sparse LU factorisation for the circuit matrix.
+//
+// The first factor() chooses the pivots by Markowitz cost with threshold
+// pivoting (markowitz.ts) and keeps the resulting pivot order and the pattern
+// of L and U, fill included. Each later factor() reuses that pattern: a
+// left-looking elimination, one column of P·A·Q at a time, into the fixed
+// pattern, with no search and no allocation. Only when a reused pivot fails
+// the threshold test does it choose the pivots afresh with the current values.
 import type { SparseMatrix } from './matrix.js';
+import { eliminateWithMarkowitz, type ColumnStructure, type EliminationFactors } from './markowitz.js';
+import { NUMERICAL_ZERO_RELATIVE, PIVOT_ACCEPTANCE_THRESHOLD } from './tolerances.js';
 
 export type FactorResult = { ok: true } | { ok: false; singularColumn: number };
 
+/** Counters for logs, benchmarks and tests. */
+export interface FactorStatistics {
+  /** How many times the pivots were chosen (first factorisation and every re-pivot). */
+  orderings: number;
+  /** How many times the kept pivot order was reused successfully. */
+  refactorizations: number;
+  /** Entries in L and U together, diagonal included. */
+  factorEntries: number;
+}
+
 export class SparseLU {
   private readonly matrix: SparseMatrix;
-  private dense = new Float64Array(0);
-  private pivotRow = new Int32Array(0);
+  private readonly size: number;
+  private structure: ColumnStructure | undefined;
+  private readonly columnScale: Float64Array;
+  private readonly work: Float64Array;
+
+  private hasOrdering = false;
   private factored = false;
+  /** Step k pivots on original row rowAtStep[k] and original column columnAtStep[k]. */
+  private rowAtStep: Int32Array = new Int32Array(0);
+  private columnAtStep: Int32Array = new Int32Array(0);
+  /** Column k of P·A·Q: its entries' rows (in step order) and their slots in the matrix's values. */
+  private permutedStart: Int32Array = new Int32Array(0);
+  private permutedRow: Int32Array = new Int32Array(0);
+  private permutedSlot: Int32Array = new Int32Array(0);
+  /** L (unit diagonal not stored), by columns, rows in step order. */
+  private lowerStart: Int32Array = new Int32Array(0);
+  private lowerRow: Int32Array = new Int32Array(0);
+  private lowerValue: Float64Array = new Float64Array(0);
+  /** U without its diagonal, by columns, rows in ascending step order. */
+  private upperStart: Int32Array = new Int32Array(0);
+  private upperRow: Int32Array = new Int32Array(0);
+  private upperValue: Float64Array = new Float64Array(0);
+  private readonly diagonal: Float64Array;
+
+  private readonly counters: FactorStatistics = { orderings: 0, refactorizations: 0, factorEntries: 0 };
 
   constructor(matrix: SparseMatrix) {
     this.matrix = matrix;
+    this.size = matrix.size;
+    this.columnScale = new Float64Array(this.size);
+    this.work = new Float64Array(this.size);
+    this.diagonal = new Float64Array(this.size);
   }
 
+  get statistics(): Readonly<FactorStatistics> {
+    return this.counters;
+  }
+
+  /**
+   * Numeric factorisation of the matrix's current values. The first call chooses the ordering and
+   * symbolic structure; later calls reuse it, and re-pivot only when a reused pivot becomes
+   * unacceptably small. Never throws on a singular matrix: reports the column.
+   */
   factor(): FactorResult {
     const matrix = this.matrix;
     if (!matrix.isFinalized) matrix.finalize();
-    const n = matrix.size;
-    if (this.dense.length !== n * n) {
-      this.dense = new Float64Array(n * n);
-      this.pivotRow = new Int32Array(n);
-    }
-    const a = this.dense;
-    a.fill(0);
-    for (let s = 0; s < matrix.values.length; s++) a[matrix.rowOfSlot[s] * n + matrix.columnOfSlot[s]] += matrix.values[s];
+    this.structure ??= compressByColumn(matrix);
     this.factored = false;
-    for (let k = 0; k < n; k++) {
-      let best = k;
-      let bestMagnitude = Math.abs(a[k * n + k]);
-      for (let i = k + 1; i < n; i++) {
-        const magnitude = Math.abs(a[i * n + k]);
-        if (magnitude > bestMagnitude) { best = i; bestMagnitude = magnitude; }
-      }
-      if (!(bestMagnitude > 0)) return { ok: false, singularColumn: k };
-      this.pivotRow[k] = best;
-      if (best !== k) {
-        for (let j = 0; j < n; j++) { const t = a[k * n + j]; a[k * n + j] = a[best * n + j]; a[best * n + j] = t; }
-      }
-      const pivot = a[k * n + k];
-      for (let i = k + 1; i < n; i++) {
-        const multiplier = (a[i * n + k] /= pivot);
-        if (multiplier === 0) continue;
-        for (let j = k + 1; j < n; j++) a[i * n + j] -= multiplier * a[k * n + j];
-      }
+    this.measureColumns();
+    if (this.hasOrdering && this.refactor()) {
+      this.counters.refactorizations++;
+      this.factored = true;
+      return { ok: true };
     }
+    this.counters.orderings++;
+    const result = eliminateWithMarkowitz(this.structure, matrix.values, this.columnScale);
+    if (!result.ok) {
+      this.hasOrdering = false;
+      return { ok: false, singularColumn: result.singularColumn };
+    }
+    this.keep(result.factors);
+    this.hasOrdering = true;
     this.factored = true;
     return { ok: true };
   }
 
+  /**
+   * Solves A·x = rhs with the last factorisation. `rhs` and `solution` may be the same array.
+   * After a failed factorisation the solution is all NaN, so that it cannot pass for an answer.
+   */
   solve(rhs: Float64Array, solution: Float64Array): void {
-    const n = this.matrix.size;
-    if (!this.factored) { solution.fill(Number.NaN, 0, n); return; }
-    const a = this.dense;
-    const x = solution;
-    if (x !== rhs) x.set(rhs.subarray(0, n));
-    for (let k = 0; k < n; k++) {
-      const p = this.pivotRow[k];
-      if (p !== k) { const t = x[k]; x[k] = x[p]; x[p] = t; }
-      for (let i = k + 1; i < n; i++) x[i] -= a[i * n + k] * x[k];
+    const n = this.size;
+    if (!this.factored) {
+      solution.fill(Number.NaN, 0, n);
+      return;
     }
+    const work = this.work;
+    const rowAtStep = this.rowAtStep;
+    for (let k = 0; k < n; k++) work[k] = rhs[rowAtStep[k]];
+    const lowerStart = this.lowerStart;
+    const lowerRow = this.lowerRow;
+    const lowerValue = this.lowerValue;
+    for (let k = 0; k < n; k++) {
+      const value = work[k];
+      if (value === 0) continue;
+      for (let e = lowerStart[k], end = lowerStart[k + 1]; e < end; e++) work[lowerRow[e]] -= lowerValue[e] * value;
+    }
+    const upperStart = this.upperStart;
+    const upperRow = this.upperRow;
+    const upperValue = this.upperValue;
+    const diagonal = this.diagonal;
     for (let k = n - 1; k >= 0; k--) {
-      let sum = x[k];
-      for (let j = k + 1; j < n; j++) sum -= a[k * n + j] * x[j];
-      x[k] = sum / a[k * n + k];
+      const value = work[k] / diagonal[k];
+      work[k] = value;
+      if (value === 0) continue;
+      for (let e = upperStart[k], end = upperStart[k + 1]; e < end; e++) work[upperRow[e]] -= upperValue[e] * value;
+    }
+    const columnAtStep = this.columnAtStep;
+    for (let k = 0; k < n; k++) solution[columnAtStep[k]] = work[k];
+  }
+
+  /** The largest original magnitude in each column, the yardstick for numerical zeros. */
+  private measureColumns(): void {
+    const scale = this.columnScale;
+    scale.fill(0);
+    const columns = this.matrix.columnOfSlot;
+    const values = this.matrix.values;
+    for (let s = 0; s < values.length; s++) {
+      const magnitude = Math.abs(values[s]);
+      if (magnitude > scale[columns[s]]) scale[columns[s]] = magnitude;
     }
   }
+
+  /**
+   * Left-looking LU into the kept pattern. Returns false, leaving the work
+   * array clean, as soon as a pivot fails the threshold test.
+   */
+  private refactor(): boolean {
+    const n = this.size;
+    const values = this.matrix.values;
+    const work = this.work;
+    const { permutedStart, permutedRow, permutedSlot, lowerStart, lowerRow, lowerValue, upperStart, upperRow, upperValue } = this;
+    const diagonal = this.diagonal;
+    const columnAtStep = this.columnAtStep;
+    const columnScale = this.columnScale;
+    for (let k = 0; k < n; k++) {
+      for (let e = permutedStart[k], end = permutedStart[k + 1]; e < end; e++) work[permutedRow[e]] = values[permutedSlot[e]];
+      // Rows above the pivot, in ascending order: each is final when reached, then updates the rows below it.
+      const upperFirst = upperStart[k];
+      const upperEnd = upperStart[k + 1];
+      for (let e = upperFirst; e < upperEnd; e++) {
+        const j = upperRow[e];
+        const value = work[j];
+        if (value === 0) continue;
+        for (let f = lowerStart[j], end = lowerStart[j + 1]; f < end; f++) work[lowerRow[f]] -= lowerValue[f] * value;
+      }
+      const pivot = work[k];
+      const lowerFirst = lowerStart[k];
+      const lowerEnd = lowerStart[k + 1];
+      let largestBelow = 0;
+      for (let e = lowerFirst; e < lowerEnd; e++) {
+        const magnitude = Math.abs(work[lowerRow[e]]);
+        if (magnitude > largestBelow) largestBelow = magnitude;
+      }
+      const magnitude = Math.abs(pivot);
+      if (!(magnitude > NUMERICAL_ZERO_RELATIVE * columnScale[columnAtStep[k]]) || magnitude < PIVOT_ACCEPTANCE_THRESHOLD * largestBelow) {
+        for (let e = upperFirst; e < upperEnd; e++) work[upperRow[e]] = 0;
+        for (let e = lowerFirst; e < lowerEnd; e++) work[lowerRow[e]] = 0;
+        work[k] = 0;
+        return false;
+      }
+      for (let e = upperFirst; e < upperEnd; e++) {
+        const j = upperRow[e];
+        upperValue[e] = work[j];
+        work[j] = 0;
+      }
+      diagonal[k] = pivot;
+      work[k] = 0;
+      for (let e = lowerFirst; e < lowerEnd; e++) {
+        const i = lowerRow[e];
+        lowerValue[e] = work[i] / pivot;
+        work[i] = 0;
+      }
+    }
+    return true;
+  }
+
+  /** Turns the elimination's factors into the static, step-ordered structure that refactor() and solve() use. */
+  private keep(factors: EliminationFactors): void {
+    const n = this.size;
+    const structure = this.structure!;
+    const stepOfRow = new Int32Array(n);
+    const stepOfColumn = new Int32Array(n);
+    for (let k = 0; k < n; k++) {
+      stepOfRow[factors.pivotRow[k]] = k;
+      stepOfColumn[factors.pivotColumn[k]] = k;
+    }
+    this.rowAtStep = factors.pivotRow;
+    this.columnAtStep = factors.pivotColumn;
+    this.diagonal.set(factors.pivotValue);
+
+    // P·A·Q by columns, pointing back at the matrix's slots.
+    const entries = structure.row.length;
+    const permutedStart = new Int32Array(n + 1);
+    const permutedRow = new Int32Array(entries);
+    const permutedSlot = new Int32Array(entries);
+    let at = 0;
+    for (let k = 0; k < n; k++) {
+      permutedStart[k] = at;
+      const column = factors.pivotColumn[k];
+      for (let e = structure.columnStart[column], end = structure.columnStart[column + 1]; e < end; e++) {
+        permutedRow[at] = stepOfRow[structure.row[e]];
+        permutedSlot[at] = structure.slot[e];
+        at++;
+      }
+    }
+    permutedStart[n] = at;
+    this.permutedStart = permutedStart;
+    this.permutedRow = permutedRow;
+    this.permutedSlot = permutedSlot;
+
+    // L keeps the elimination's columns; only the row numbers change to steps.
+    const lowerRow = new Int32Array(factors.lowerRow.length);
+    for (let e = 0; e < lowerRow.length; e++) lowerRow[e] = stepOfRow[factors.lowerRow[e]];
+    this.lowerStart = factors.lowerStart;
+    this.lowerRow = lowerRow;
+    this.lowerValue = factors.lowerValue;
+
+    // U came by rows; transpose it into columns. Walking the rows in step order leaves each column's rows ascending.
+    const upperCount = factors.upperColumn.length;
+    const upperStart = new Int32Array(n + 1);
+    for (let e = 0; e < upperCount; e++) upperStart[stepOfColumn[factors.upperColumn[e]] + 1]++;
+    for (let k = 0; k < n; k++) upperStart[k + 1] += upperStart[k];
+    const next = upperStart.slice(0, n);
+    const upperRow = new Int32Array(upperCount);
+    const upperValue = new Float64Array(upperCount);
+    for (let k = 0; k < n; k++) {
+      for (let e = factors.upperStart[k], end = factors.upperStart[k + 1]; e < end; e++) {
+        const column = stepOfColumn[factors.upperColumn[e]];
+        const place = next[column]++;
+        upperRow[place] = k;
+        upperValue[place] = factors.upperValue[e];
+      }
+    }
+    this.upperStart = upperStart;
+    this.upperRow = upperRow;
+    this.upperValue = upperValue;
+    this.counters.factorEntries = lowerRow.length + upperCount + n;
+  }
+}
+
+/** The matrix's slots grouped by column (a counting sort), for the elimination and the permuted scatter. */
+function compressByColumn(matrix: SparseMatrix): ColumnStructure {
+  const n = matrix.size;
+  const rows = matrix.rowOfSlot;
+  const columns = matrix.columnOfSlot;
+  const entries = rows.length;
+  const columnStart = new Int32Array(n + 1);
+  for (let s = 0; s < entries; s++) columnStart[columns[s] + 1]++;
+  for (let j = 0; j < n; j++) columnStart[j + 1] += columnStart[j];
+  const next = columnStart.slice(0, n);
+  const row = new Int32Array(entries);
+  const slot = new Int32Array(entries);
+  for (let s = 0; s < entries; s++) {
+    const place = next[columns[s]]++;
+    row[place] = rows[s];
+    slot[place] = s;
+  }
+  return { size: n, columnStart, row, slot };
 }
