@@ -1,0 +1,201 @@
+// When and what to check: each open document is analysed after a pause in typing
+// (debounced); a newer edit cancels the older analysis, and a result for a text that
+// is no longer current is never published. A change to a file that an analysis read
+// (an include, a pnlint.json) re-checks the documents that read it.
+import { CancellationTokenSource, DiagnosticSeverity, type Connection, type Diagnostic, type TextDocuments } from 'vscode-languageserver';
+import type { TextDocument } from 'vscode-languageserver-textdocument';
+import { analyze, type Analysis } from '../analysis.js';
+import { toDiagnostic } from './diagnostics.js';
+import type { RulePages } from './rule-pages.js';
+import type { ServerSettings } from './settings.js';
+import { uriKey, type Workspace } from './workspace.js';
+import { STATUS_NOTIFICATION, type StatusParams } from './protocol.js';
+
+/** The last published check of one document, kept for hover, code actions and the rest. */
+export interface Checked {
+  analysis: Analysis;
+  /** The document version analysed. */
+  version: number;
+  settings: ServerSettings;
+  /** uri → version of each open document read (undefined: read from disk). */
+  versionsRead: Map<string, number | undefined>;
+  /** uri keys of every file the analysis read or looked for, and its pnlint.json. */
+  dependencies: Set<string>;
+}
+
+interface DocumentState {
+  timer?: NodeJS.Timeout;
+  running?: CancellationTokenSource;
+  checked?: Checked;
+}
+
+export class Checker {
+  private readonly states = new Map<string, DocumentState>();
+  /** target uri → analysed document uri → its diagnostics in the target. */
+  private readonly published = new Map<string, Map<string, Diagnostic[]>>();
+  /** Called after each publish, for tests and the benchmark to wait on. */
+  onPublished: (uri: string) => void = () => {};
+
+  constructor(
+    private readonly connection: Connection,
+    private readonly documents: TextDocuments<TextDocument>,
+    private readonly workspace: Workspace,
+    private readonly settingsFor: (uri: string) => Promise<ServerSettings>,
+    private readonly pages: RulePages,
+  ) {}
+
+  private state(uri: string): DocumentState {
+    let state = this.states.get(uri);
+    if (!state) {
+      state = {};
+      this.states.set(uri, state);
+    }
+    return state;
+  }
+
+  latest(uri: string): Checked | undefined {
+    return this.states.get(uri)?.checked;
+  }
+
+  /** Checks `uri` after the debounce delay; an analysis still pending or running for it is cancelled. */
+  schedule(uri: string, delayMilliseconds?: number): void {
+    const state = this.state(uri);
+    if (state.timer) clearTimeout(state.timer);
+    state.running?.cancel();
+    const source = new CancellationTokenSource();
+    state.running = source;
+    const start = (delay: number) => {
+      state.timer = setTimeout(() => {
+        state.timer = undefined;
+        void this.run(uri, source);
+      }, delay);
+    };
+    if (delayMilliseconds !== undefined) start(delayMilliseconds);
+    else void this.settingsFor(uri).then((settings) => !source.token.isCancellationRequested && start(settings.debounceMilliseconds), () => start(0));
+  }
+
+  /** Re-checks every open document that read `uri` (other than `uri` itself). */
+  recheckDependents(uri: string): void {
+    const key = uriKey(uri);
+    for (const [documentUri, state] of this.states) {
+      if (uriKey(documentUri) !== key && state.checked?.dependencies.has(key) && this.documents.get(documentUri)) this.schedule(documentUri);
+    }
+  }
+
+  recheckAll(): void {
+    for (const document of this.documents.all()) this.schedule(document.uri);
+  }
+
+  /** The document was closed: forget it, clear its diagnostics, and re-check what included it (now from disk). */
+  close(uri: string): void {
+    const state = this.states.get(uri);
+    if (state?.timer) clearTimeout(state.timer);
+    state?.running?.cancel();
+    this.states.delete(uri);
+    this.replaceContributions(uri, new Map(), undefined);
+    this.recheckDependents(uri);
+  }
+
+  private async run(uri: string, source: CancellationTokenSource): Promise<void> {
+    const token = source.token;
+    const document = this.documents.get(uri);
+    if (!document || token.isCancellationRequested) return;
+    const version = document.version;
+    let settings: ServerSettings;
+    try {
+      settings = await this.settingsFor(uri);
+    } catch (error) {
+      this.connection.console.error(`settings for ${uri}: ${String(error)}`);
+      return;
+    }
+    if (token.isCancellationRequested || this.documents.get(uri)?.version !== version) return;
+
+    const reader = this.workspace.createReader((message) => this.connection.console.info(message));
+    const config = this.workspace.readConfig(uri);
+    let analysis: Analysis;
+    try {
+      analysis = await analyze({ uri, text: document.getText(), files: reader, settings: settings.core, config, cancellation: token });
+    } catch (error) {
+      this.reportInternalError(uri, version, error);
+      return;
+    }
+    // Only the current text's results are shown: an edit since then has scheduled a newer check.
+    if (token.isCancellationRequested || !analysis.complete || this.documents.get(uri)?.version !== version) return;
+
+    const dependencies = new Set<string>([...analysis.filesRead.map(uriKey), ...reader.asked]);
+    const configUri = this.workspace.configUriFor(uri);
+    if (configUri) dependencies.add(uriKey(configUri));
+    const checked: Checked = { analysis, version, settings, versionsRead: reader.versions, dependencies };
+    this.state(uri).checked = checked;
+
+    const contributions = new Map<string, Diagnostic[]>();
+    analysis.findings.forEach((finding, index) => {
+      const diagnostic = toDiagnostic(finding, settings.core, this.pages, { analyzed: uri, version, index });
+      if (!diagnostic) return;
+      const target = this.workspace.openDocument(finding.location.uri)?.uri ?? finding.location.uri;
+      let list = contributions.get(target);
+      if (!list) contributions.set(target, (list = []));
+      list.push(diagnostic);
+    });
+    if (!contributions.has(uri)) contributions.set(uri, []);
+    this.replaceContributions(uri, contributions, version);
+    this.sendStatus(uri, analysis.milliseconds);
+    this.onPublished(uri);
+  }
+
+  /** Replaces what the analysis of `analyzed` contributes to each file, and publishes the files that changed. */
+  private replaceContributions(analyzed: string, contributions: Map<string, Diagnostic[]>, version: number | undefined): void {
+    const targets = new Set<string>(contributions.keys());
+    for (const [target, bySource] of this.published) if (bySource.has(analyzed)) targets.add(target);
+    for (const target of targets) {
+      let bySource = this.published.get(target);
+      if (!bySource) this.published.set(target, (bySource = new Map()));
+      const diagnostics = contributions.get(target);
+      if (diagnostics) bySource.set(analyzed, diagnostics);
+      else bySource.delete(analyzed);
+      const all = dedupe([...bySource.values()].flat());
+      if (bySource.size === 0) this.published.delete(target);
+      void this.connection.sendDiagnostics({ uri: target, diagnostics: all, ...(target === analyzed && version !== undefined ? { version } : {}) });
+    }
+  }
+
+  /** The diagnostics now shown for `uri`, from every analysis that reaches it. */
+  shown(uri: string): Diagnostic[] {
+    return dedupe([...(this.published.get(uri)?.values() ?? [])].flat());
+  }
+
+  private sendStatus(uri: string, milliseconds: number): void {
+    const shown = this.shown(uri);
+    const status: StatusParams = {
+      uri,
+      errors: shown.filter((d) => d.severity === DiagnosticSeverity.Error).length,
+      warnings: shown.filter((d) => d.severity === DiagnosticSeverity.Warning).length,
+      milliseconds: Math.round(milliseconds * 10) / 10,
+    };
+    void this.connection.sendNotification(STATUS_NOTIFICATION, status);
+  }
+
+  private reportInternalError(uri: string, version: number, error: unknown): void {
+    const detail = error instanceof Error ? (error.stack ?? error.message) : String(error);
+    this.connection.console.error(`internal error while checking ${uri}: ${detail}`);
+    const diagnostic: Diagnostic = {
+      range: { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } },
+      severity: DiagnosticSeverity.Information,
+      source: 'pnlint',
+      message: 'pnlint could not check this file: it stopped on an internal error (details in the pnlint output channel). Please report it with the netlist.',
+    };
+    this.replaceContributions(uri, new Map([[uri, [diagnostic]]]), version);
+    this.onPublished(uri);
+  }
+}
+
+/** Two analyses that include the same file report its findings twice: show each once. */
+function dedupe(diagnostics: Diagnostic[]): Diagnostic[] {
+  const seen = new Set<string>();
+  return diagnostics.filter((d) => {
+    const key = `${d.range.start.line}:${d.range.start.character}:${d.range.end.line}:${d.range.end.character}:${String(d.code)}:${d.message}`;
+    if (seen.has(key)) return false;
+    seen.add(key);
+    return true;
+  });
+}

@@ -1,0 +1,175 @@
+// Code actions: each finding's fixes (already verified by re-simulation in the
+// pipeline) as quick fixes, an ignore directive for each finding, and
+// `source.fixAll.pnlint` applying every preferred fix at once.
+import type { TextDocument } from 'vscode-languageserver-textdocument';
+import {
+  CodeActionKind,
+  type CodeAction,
+  type CodeActionParams,
+  type Diagnostic,
+  type TextEdit as LspTextEdit,
+  type WorkspaceEdit,
+} from 'vscode-languageserver';
+import type { Finding, Fix } from '../findings.js';
+import type { Checked } from './checking.js';
+import type { FeatureContext } from './context.js';
+import { isFindingReference, SOURCE } from './diagnostics.js';
+import { rangesOverlap, toLspRange } from './positions.js';
+import { forEachStatement } from './syntax.js';
+import { uriKey } from './workspace.js';
+
+export const FIX_ALL_KIND = `${CodeActionKind.SourceFixAll}.pnlint`;
+
+/** Rules that a directive cannot silence: a line that does not parse is not checked at all. */
+const UNIGNORABLE_RULES = new Set(['syntax']);
+
+export interface CodeActionOptions {
+  /** The client accepts `documentChanges` with versions (so that a stale edit is refused). */
+  versionedEdits: boolean;
+}
+
+export function codeActions(context: FeatureContext, params: CodeActionParams, options: CodeActionOptions): CodeAction[] {
+  const document = context.documents.get(params.textDocument.uri);
+  if (!document) return [];
+  const wanted = params.context.only;
+  const wants = (kind: string) => !wanted || wanted.some((only) => kind === only || kind.startsWith(`${only}.`));
+  const actions: CodeAction[] = [];
+
+  if (wants(CodeActionKind.QuickFix)) {
+    for (const diagnostic of params.context.diagnostics) {
+      if (diagnostic.source !== SOURCE || !isFindingReference(diagnostic.data)) continue;
+      const checked = context.checker.latest(diagnostic.data.analyzed);
+      if (!checked || checked.version !== diagnostic.data.version) continue;
+      const finding = checked.analysis.findings[diagnostic.data.index];
+      if (!finding) continue;
+      if (isCurrent(context, checked)) {
+        for (const fix of finding.fixes) {
+          actions.push({
+            title: fix.title,
+            kind: CodeActionKind.QuickFix,
+            diagnostics: [diagnostic],
+            isPreferred: fix.preferred,
+            edit: workspaceEdit(context, fix.edits.map(toLspEdit), options),
+          });
+        }
+      }
+      actions.push(...ignoreActions(context, document, finding, diagnostic, options));
+    }
+  }
+
+  if (wants(FIX_ALL_KIND)) {
+    const fixAll = fixAllAction(context, document, options);
+    if (fixAll) actions.push(fixAll);
+  }
+  return actions;
+}
+
+/** True when every file the analysis read from an editor still has the version it read. */
+function isCurrent(context: FeatureContext, checked: Checked): boolean {
+  for (const [uri, version] of checked.versionsRead) {
+    if (context.workspace.openDocument(uri)?.version !== version) return false;
+  }
+  const main = context.documents.get(checked.analysis.uri);
+  return main?.version === checked.version;
+}
+
+function toLspEdit(edit: { uri: string; range: Parameters<typeof toLspRange>[0]; newText: string }): LspTextEdit & { uri: string } {
+  return { uri: edit.uri, range: toLspRange(edit.range), newText: edit.newText };
+}
+
+function workspaceEdit(context: FeatureContext, edits: (LspTextEdit & { uri: string })[], options: CodeActionOptions): WorkspaceEdit {
+  const byUri = new Map<string, LspTextEdit[]>();
+  for (const { uri, range, newText } of edits) {
+    const target = context.workspace.openDocument(uri)?.uri ?? uri;
+    let list = byUri.get(target);
+    if (!list) byUri.set(target, (list = []));
+    list.push({ range, newText });
+  }
+  if (options.versionedEdits) {
+    return {
+      documentChanges: [...byUri].map(([uri, list]) => ({
+        textDocument: { uri, version: context.workspace.openDocument(uri)?.version ?? null },
+        edits: list,
+      })),
+    };
+  }
+  return { changes: Object.fromEntries(byUri) };
+}
+
+/** The end-of-line the document already uses. */
+function lineEnding(document: TextDocument): string {
+  return document.getText().includes('\r\n') ? '\r\n' : '\n';
+}
+
+function ignoreActions(context: FeatureContext, document: TextDocument, finding: Finding, diagnostic: Diagnostic, options: CodeActionOptions): CodeAction[] {
+  if (UNIGNORABLE_RULES.has(finding.rule)) return [];
+  const findingDocument = context.workspace.openDocument(finding.location.uri);
+  // A directive goes into the file the finding is in; it can only be written there if it is open.
+  if (!findingDocument) return [];
+  const eol = lineEnding(findingDocument);
+  const actions: CodeAction[] = [];
+  const isAnalysed = uriKey(findingDocument.uri) === uriKey(document.uri);
+  const elementLine = elementLineAt(context, findingDocument, isAnalysed, finding.location.range.start.line);
+  if (elementLine !== undefined) {
+    const text = findingDocument.getText({ start: { line: elementLine, character: 0 }, end: { line: elementLine + 1, character: 0 } });
+    const indentation = /^[ \t]*/.exec(text)![0];
+    actions.push({
+      title: `Ignore ${finding.rule} on this line (add a pnlint directive above it)`,
+      kind: CodeActionKind.QuickFix,
+      diagnostics: [diagnostic],
+      edit: workspaceEdit(
+        context,
+        [{ uri: findingDocument.uri, range: { start: { line: elementLine, character: 0 }, end: { line: elementLine, character: 0 } }, newText: `${indentation}*pnlint: ignore ${finding.rule} -- ${eol}` }],
+        options,
+      ),
+    });
+  }
+  // The file's first line is its title when it is the file analysed, so the directive goes below it.
+  const fileLine = isAnalysed && findingDocument.lineCount > 1 ? 1 : 0;
+  actions.push({
+    title: `Ignore ${finding.rule} in this whole file`,
+    kind: CodeActionKind.QuickFix,
+    diagnostics: [diagnostic],
+    edit: workspaceEdit(
+      context,
+      [{ uri: findingDocument.uri, range: { start: { line: fileLine, character: 0 }, end: { line: fileLine, character: 0 } }, newText: `*pnlint: ignore-file ${finding.rule} -- ${eol}` }],
+      options,
+    ),
+  });
+  return actions;
+}
+
+/** The first line of the element statement covering `line`, if an element is written there. */
+function elementLineAt(context: FeatureContext, document: TextDocument, isAnalysed: boolean, line: number): number | undefined {
+  const syntax = isAnalysed ? context.syntax(document) : context.includedSyntax.get(document.uri, document.getText());
+  let found: number | undefined;
+  forEachStatement(syntax.statements, (statement) => {
+    if (found === undefined && statement.kind === 'element' && statement.range.start.line <= line && statement.range.end.line >= line) found = statement.range.start.line;
+  });
+  return found;
+}
+
+/** Every preferred fix of the document's findings, leaving out any that would overlap one already taken. */
+function fixAllAction(context: FeatureContext, document: TextDocument, options: CodeActionOptions): CodeAction | undefined {
+  const checked = context.current(document);
+  if (!checked || !isCurrent(context, checked)) return undefined;
+  const taken: (LspTextEdit & { uri: string })[] = [];
+  let fixes = 0;
+  for (const finding of checked.analysis.findings) {
+    if (checked.settings.core.severities[finding.rule] === 'off') continue;
+    const fix: Fix | undefined = finding.fixes.find((candidate) => candidate.preferred);
+    if (!fix) continue;
+    const edits = fix.edits.map(toLspEdit);
+    const clashes = edits.some((edit) => taken.some((other) => uriKey(other.uri) === uriKey(edit.uri) && (rangesOverlap(other.range, edit.range) || samePoint(other, edit))));
+    if (clashes) continue;
+    taken.push(...edits);
+    fixes += 1;
+  }
+  if (fixes === 0) return undefined;
+  return { title: `Apply all ${fixes} preferred pnlint fix${fixes === 1 ? '' : 'es'}`, kind: FIX_ALL_KIND, edit: workspaceEdit(context, taken, options) };
+}
+
+/** Two insertions at the same point would land in an unspecified order: treat them as a clash. */
+function samePoint(a: LspTextEdit, b: LspTextEdit): boolean {
+  return a.range.start.line === b.range.start.line && a.range.start.character === b.range.start.character;
+}

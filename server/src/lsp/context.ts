@@ -1,0 +1,51 @@
+// What every editor feature reads: the open document, its syntax tree (the analysed
+// one when it is current), the definitions it can see, and the last check's results.
+import { parse, type ParseResult } from '@pnlint/grammar';
+import type { Connection, TextDocuments } from 'vscode-languageserver';
+import type { TextDocument } from 'vscode-languageserver-textdocument';
+import type { Checked, Checker } from './checking.js';
+import { buildIndex, IncludedSyntaxCache, type SyntaxIndex } from './syntax.js';
+import type { Workspace } from './workspace.js';
+
+export class FeatureContext {
+  private readonly parsed = new Map<string, { version: number; syntax: ParseResult }>();
+  readonly includedSyntax = new IncludedSyntaxCache();
+
+  constructor(
+    readonly connection: Connection,
+    readonly documents: TextDocuments<TextDocument>,
+    readonly workspace: Workspace,
+    readonly checker: Checker,
+  ) {}
+
+  log(message: string): void {
+    this.connection.console.info(message);
+  }
+
+  /** The document's syntax tree for its current text. */
+  syntax(document: TextDocument): ParseResult {
+    const checked = this.checker.latest(document.uri);
+    if (checked && checked.version === document.version) return checked.analysis.syntax;
+    const cached = this.parsed.get(document.uri);
+    if (cached && cached.version === document.version) return cached.syntax;
+    const syntax = parse(document.getText());
+    this.parsed.set(document.uri, { version: document.version, syntax });
+    return syntax;
+  }
+
+  /** Every definition visible from the document, its includes' included. */
+  index(document: TextDocument): SyntaxIndex {
+    return buildIndex(document.uri, this.syntax(document), this.workspace.createReader((message) => this.log(message)), this.includedSyntax);
+  }
+
+  /** The last published check, only when it was made from the document's current text. */
+  current(document: TextDocument): Checked | undefined {
+    const checked = this.checker.latest(document.uri);
+    return checked && checked.version === document.version ? checked : undefined;
+  }
+
+  forget(uri: string): void {
+    this.parsed.delete(uri);
+    this.includedSyntax.forget(uri);
+  }
+}
