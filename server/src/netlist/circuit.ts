@@ -54,8 +54,18 @@ interface ElementBase {
 }
 
 export interface Resistor extends ElementBase { type: 'R'; resistance: number }
-export interface Capacitor extends ElementBase { type: 'C'; capacitance: number }
-export interface Inductor extends ElementBase { type: 'L'; inductance: number }
+export interface Capacitor extends ElementBase {
+  type: 'C';
+  capacitance: number;
+  /** `ic=`: the initial voltage for a transient that skips the operating point (V). */
+  initialCondition?: number;
+}
+export interface Inductor extends ElementBase {
+  type: 'L';
+  inductance: number;
+  /** `ic=`: the initial current for a transient that skips the operating point (A). */
+  initialCondition?: number;
+}
 export interface VoltageSource extends ElementBase {
   type: 'V';
   /** The DC value (what `.op` uses): the `DC` value, else the waveform's value at t = 0. */
@@ -85,8 +95,10 @@ export interface Diode extends ElementBase {
   model: Model;
   area: number;
   off: boolean;
-  /** Instance temperature in °C, when given (`temp=`). */
+  /** Instance temperature in °C, when given (`temp=`, or `dtemp=` added to the circuit's). */
   temperature: number | undefined;
+  /** `ic=`: the initial junction voltage for a transient that skips the operating point (V). */
+  initialCondition?: number;
 }
 /** Q: nodes = [collector, base, emitter] (a fourth substrate node is kept but not simulated). */
 export interface Bjt extends ElementBase { type: 'Q'; model: Model; area: number; off: boolean }
@@ -144,6 +156,8 @@ export interface Circuit {
   /** `.options` values, lower-cased keys (e.g. `tnom`, `gmin`, `reltol`). */
   options: Record<string, number>;
   directives: DirectiveComment[];
+  /** Global `.param` values by lower-cased name (for hovers and fixes). */
+  parameters?: Map<string, number>;
   /** Every file read, with its text, so that fixes can edit and re-elaborate. */
   files: Map<string, string>;
   diagnostics: NetlistDiagnostic[];

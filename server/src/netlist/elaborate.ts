@@ -1,0 +1,675 @@
+// Elaboration: from the syntax trees of a netlist and the files it includes to
+// one flat circuit. Includes and `.lib` sections are read through the injected
+// FileReader, `.if` blocks are decided, parameters evaluated, subcircuits
+// flattened with hierarchical names (`X2.D1`, node `X2.a`), and every element
+// keeps the line it came from. Bad input never throws: it becomes a diagnostic.
+import {
+  isAmbiguousNumber,
+  parse,
+  readMarkingCode,
+  readSpiceNumber,
+  type ElementStatement,
+  type IncludeStatement,
+  type LibReferenceStatement,
+  type ParseResult,
+  type Range,
+  type Statement,
+  type SubcktStatement,
+} from '@pnlint/grammar';
+import { GROUND, type Circuit, type DirectiveComment, type Element, type FileReader, type Model, type SourceLocation } from './circuit.js';
+import { DiagnosticSink } from './diagnostics.js';
+import { readElement, type ElementContext, type NodeField } from './elements.js';
+import { formatQuantity, formatSpiceNumber, unitOfElement } from './format.js';
+import { readModel } from './models.js';
+import { ParameterEvaluation, ParameterScope } from './parameters.js';
+import { isWithin } from './paths.js';
+import { TIMES_WITHOUT_TRANSIENT, type TransientTimes } from './waveforms.js';
+
+export interface ElaborateOptions {
+  /** Untrusted workspace: files outside `workspaceRoot` are not read. */
+  restricted?: boolean;
+  workspaceRoot?: string;
+}
+
+/** SPICE's default circuit temperature, 27 °C (SPICE3 user's manual, Quarles 1989). */
+export const DEFAULT_TEMPERATURE = 27;
+/** Subcircuits nested deeper than this are reported rather than expanded (no real design comes close). */
+export const MAXIMUM_SUBCIRCUIT_DEPTH = 100;
+/** Includes nested deeper than this are reported rather than read. */
+export const MAXIMUM_INCLUDE_DEPTH = 64;
+/** Elaboration stops at this many elements, so that a netlist whose subcircuits multiply out cannot exhaust memory. */
+export const MAXIMUM_ELEMENTS = 2_000_000;
+
+/** Ground's other name (any case). */
+const GROUND_ALIAS = 'gnd';
+const DIRECTIVE = /^\s*pnlint:/i;
+
+interface Located {
+  statement: Statement;
+  uri: string;
+}
+
+interface SubcircuitDefinition {
+  statement: SubcktStatement;
+  uri: string;
+  /** Where it was defined: its body sees that scope's parameters, models and subcircuits. */
+  frame: Frame;
+}
+
+/** One scope: the top level, or one subcircuit instance. */
+interface Frame {
+  /** `X2.` inside instance X2, empty at top level. */
+  prefix: string;
+  /** The scope the definition sits in (lexical parent). */
+  parent: Frame | undefined;
+  /** Port name (lower-cased) → the caller's circuit node. */
+  ports: Map<string, string>;
+  params: ParameterScope;
+  subcircuits: Map<string, SubcircuitDefinition>;
+  models: Map<string, Model>;
+  instances: SourceLocation[];
+  /** The subcircuits being expanded, outermost first, with the instance names: recursion is found here. */
+  active: { definition: SubcktStatement; instance: string }[];
+  /** Element names (lower-cased) in this scope → where the first one is. */
+  elementNames: Map<string, SourceLocation>;
+}
+
+/**
+ * Elaborates the netlist `text` (the top-level file at `uri`). Never throws:
+ * every problem is in `circuit.diagnostics`.
+ */
+export function elaborate(uri: string, text: string, reader: FileReader, options: ElaborateOptions = {}): Circuit {
+  return new Elaborator(uri, reader, options).run(text);
+}
+
+class Elaborator {
+  private readonly sink = new DiagnosticSink();
+  private readonly files = new Map<string, string>();
+  private readonly parsed = new Map<string, ParseResult | undefined>();
+  private readonly includeStack: string[] = [];
+  private readonly elements: Element[] = [];
+  private readonly directives: DirectiveComment[] = [];
+  private readonly models = new Map<string, Model>();
+  private readonly nodeNames = new Map<string, string>([[GROUND, GROUND]]);
+  private readonly nodes: string[] = [GROUND];
+  private readonly globals = new Set<string>();
+  private temperature: number | undefined;
+  private readonly options: Record<string, number> = {};
+  private times: TransientTimes = TIMES_WITHOUT_TRANSIENT;
+  private budgetReported = false;
+  private readonly evaluation: ParameterEvaluation;
+
+  constructor(
+    private readonly uri: string,
+    private readonly reader: FileReader,
+    private readonly settings: ElaborateOptions,
+  ) {
+    this.evaluation = new ParameterEvaluation(this.sink, (fileUri, numberText, range, letter) =>
+      this.checkAmbiguous(fileUri, numberText, range, letter),
+    );
+  }
+
+  run(text: string): Circuit {
+    let title: string | undefined;
+    const top = this.topFrame();
+    try {
+      this.files.set(this.uri, text);
+      const syntax = this.parseText(this.uri, text, false);
+      const titleStatement = syntax.statements.find((s) => s.kind === 'title');
+      title = titleStatement?.kind === 'title' ? titleStatement.text : undefined;
+      this.includeStack.push(this.uri);
+      const statements = this.prepare(this.expand(syntax.statements, this.uri, true), top);
+      this.collectCircuitSettings(statements, top);
+      this.register(statements, top);
+      this.walk(statements, top);
+      this.resolveReferences();
+    } catch (error) {
+      // A bug of ours must not take the editor down: say so where the user can see it.
+      const at = { start: { line: 0, column: 0, offset: 0 }, end: { line: 0, column: 0, offset: 0 } };
+      this.sink.error(this.uri, at, `internal error while reading the netlist: ${error instanceof Error ? error.message : String(error)}`);
+    }
+    return {
+      uri: this.uri,
+      title,
+      elements: this.elements,
+      models: this.models,
+      nodes: this.nodes,
+      temperature: this.temperature ?? DEFAULT_TEMPERATURE,
+      options: this.options,
+      directives: this.directives,
+      parameters: top.params.values(),
+      files: this.files,
+      diagnostics: this.sink.diagnostics,
+    };
+  }
+
+  private topFrame(): Frame {
+    return {
+      prefix: '',
+      parent: undefined,
+      ports: new Map(),
+      params: new ParameterScope(undefined, this.evaluation),
+      subcircuits: new Map(),
+      models: new Map(),
+      instances: [],
+      active: [],
+      elementNames: new Map(),
+    };
+  }
+
+  // ------------------------------------------------------------ files
+
+  private parseText(uri: string, text: string, isInclude: boolean): ParseResult {
+    let result: ParseResult;
+    try {
+      result = parse(text, { isInclude });
+    } catch (error) {
+      const at = { start: { line: 0, column: 0, offset: 0 }, end: { line: 0, column: 0, offset: 0 } };
+      this.sink.report('error', 'syntax', uri, at, `the parser failed on this file: ${error instanceof Error ? error.message : String(error)}`);
+      result = { statements: [], diagnostics: [] };
+    }
+    for (const d of result.diagnostics) this.sink.report(d.severity, d.code, uri, d.range, d.message);
+    this.parsed.set(uri, result);
+    return result;
+  }
+
+  /** Reads and parses an included file once, however often it is included. */
+  private load(uri: string): ParseResult | undefined {
+    if (this.parsed.has(uri)) return this.parsed.get(uri);
+    let text: string | undefined;
+    try {
+      text = this.reader.read(uri);
+    } catch {
+      text = undefined;
+    }
+    if (text === undefined) {
+      this.parsed.set(uri, undefined);
+      return undefined;
+    }
+    this.files.set(uri, text);
+    return this.parseText(uri, text, true);
+  }
+
+  /** Resolves an include's path, or reports why it cannot be read. */
+  private target(statement: IncludeStatement | LibReferenceStatement, fromUri: string): string | undefined {
+    let target: string;
+    try {
+      target = this.reader.resolve(fromUri, statement.path);
+    } catch {
+      this.sink.error(fromUri, statement.pathRange, `cannot resolve the path ${statement.path}`);
+      return undefined;
+    }
+    if (this.settings.restricted && !(this.settings.workspaceRoot && isWithin(target, this.settings.workspaceRoot))) {
+      this.sink.error(
+        fromUri,
+        statement.pathRange,
+        `${statement.path} is not read: it lies outside the workspace, and files outside the workspace are not read in an untrusted (restricted) workspace`,
+      );
+      return undefined;
+    }
+    if (this.includeStack.length >= MAXIMUM_INCLUDE_DEPTH) {
+      this.sink.error(fromUri, statement.range, `includes are nested more than ${MAXIMUM_INCLUDE_DEPTH} deep; ${statement.path} is not read`);
+      return undefined;
+    }
+    return target;
+  }
+
+  private cycle(key: string, statement: Statement, fromUri: string, what: string): boolean {
+    const index = this.includeStack.indexOf(key);
+    if (index < 0) return false;
+    const chain = [...this.includeStack.slice(index), key].map((k) => k.replace(/^.*[\\/]/, '')).join(' → ');
+    this.sink.error(fromUri, statement.range, `include cycle: ${what} is already being read (${chain})`);
+    return true;
+  }
+
+  /** Replaces includes and `.lib` references by their statements; `.if` blocks stay for `prepare` to decide. */
+  private expand(statements: Statement[], uri: string, isTop = false): Located[] {
+    const out: Located[] = [];
+    for (const statement of statements) {
+      switch (statement.kind) {
+        case 'include': {
+          const target = this.target(statement, uri);
+          if (target === undefined || this.cycle(target, statement, uri, statement.path)) break;
+          const syntax = this.load(target);
+          if (!syntax) {
+            this.sink.error(uri, statement.range, `cannot read ${statement.path} (looked for ${target})`);
+            break;
+          }
+          this.includeStack.push(target);
+          out.push(...this.expand(syntax.statements, target));
+          this.includeStack.pop();
+          break;
+        }
+        case 'libReference': {
+          const target = this.target(statement, uri);
+          const section = statement.section.text;
+          const key = `${target}#${section.toLowerCase()}`;
+          if (target === undefined || this.cycle(key, statement, uri, `section ${section} of ${statement.path}`)) break;
+          const syntax = this.load(target);
+          if (!syntax) {
+            this.sink.error(uri, statement.range, `cannot read ${statement.path} (looked for ${target})`);
+            break;
+          }
+          const sections = syntax.statements.filter((s) => s.kind === 'libSection');
+          const found = sections.find((s) => s.name.text.toLowerCase() === section.toLowerCase());
+          if (!found) {
+            const names = sections.map((s) => s.name.text);
+            this.sink.error(
+              uri,
+              statement.section.range,
+              `${statement.path} has no section ${section}${names.length ? ` (it has ${names.join(', ')})` : ''}`,
+            );
+            break;
+          }
+          this.includeStack.push(key);
+          out.push(...this.expand(found.body, target));
+          this.includeStack.pop();
+          break;
+        }
+        case 'libSection':
+          // A section is read only when a `.lib file section` line asks for it.
+          break;
+        case 'end':
+          if (isTop) return out; // engines read nothing after `.end`
+          break;
+        default:
+          out.push({ statement, uri });
+      }
+    }
+    return out;
+  }
+
+  // ------------------------------------------------- parameters and .if
+
+  /** Defines the scope's `.param`s and `.func`s, decides its `.if` blocks, and returns the statements that remain. */
+  private prepare(located: Located[], frame: Frame): Located[] {
+    const defined: string[] = [];
+    for (const { statement, uri } of located) {
+      if (statement.kind === 'param') {
+        for (const assign of statement.assigns) {
+          frame.params.define(assign.key.text, assign.value, uri, assign.range);
+          defined.push(assign.key.text.toLowerCase());
+        }
+      } else if (statement.kind === 'func' && statement.body?.expr) {
+        frame.params.defineFunction({
+          name: statement.name.text,
+          parameters: statement.args.map((a) => a.text.toLowerCase()),
+          body: statement.body.expr,
+          uri,
+          scope: frame.params,
+        });
+      }
+    }
+    const out: Located[] = [];
+    for (const item of located) {
+      if (item.statement.kind !== 'if') {
+        out.push(item);
+        continue;
+      }
+      const taken = this.takenBranch(item.statement, item.uri, frame);
+      if (taken) out.push(...this.prepare(this.expand(taken, item.uri), frame));
+    }
+    // Evaluate every parameter now, in the order written, so that each problem is reported where it was written.
+    for (const name of defined) frame.params.parameter(name);
+    return out;
+  }
+
+  private takenBranch(statement: Extract<Statement, { kind: 'if' }>, uri: string, frame: Frame): Statement[] | undefined {
+    for (const branch of statement.branches) {
+      if (!branch.condition) return branch.body;
+      if (!branch.condition.expr) return undefined; // does not parse: its syntax diagnostic says so
+      const value = frame.params.evaluateField(branch.condition, uri);
+      if (value === undefined) return undefined;
+      if (value !== 0) return branch.body;
+    }
+    return undefined;
+  }
+
+  // ------------------------------------------ models, subcircuits, options
+
+  private collectCircuitSettings(located: Located[], frame: Frame): void {
+    for (const { statement, uri } of located) {
+      if (statement.kind === 'global') {
+        for (const node of statement.nodes) this.globals.add(node.text.toLowerCase());
+      } else if (statement.kind === 'dot') {
+        if (statement.command === 'temp' && this.temperature === undefined) {
+          const first = statement.fields[0];
+          if (first) this.temperature = frame.params.evaluateField(first, uri);
+          else this.sink.error(uri, statement.range, `.temp needs a temperature in °C`);
+        } else if (statement.command === 'options') {
+          for (const field of statement.fields) {
+            if (field.kind !== 'assign') continue; // flags such as `noacct` carry no number
+            const value = frame.params.evaluateField(field.value, uri);
+            if (value !== undefined) this.options[field.key.text.toLowerCase()] = value;
+          }
+        } else if (statement.command === 'tran') {
+          const [step, stop] = statement.fields.filter((f) => f.kind !== 'assign');
+          const stepValue = step ? frame.params.evaluateField(step, uri) : undefined;
+          const stopValue = stop ? frame.params.evaluateField(stop, uri) : undefined;
+          if (stepValue !== undefined && stopValue !== undefined) this.times = { step: stepValue, stop: stopValue };
+        }
+      }
+    }
+  }
+
+  private register(located: Located[], frame: Frame): void {
+    for (const { statement, uri } of located) {
+      if (statement.kind === 'subckt') {
+        const key = statement.name.text.toLowerCase();
+        const first = frame.subcircuits.get(key);
+        if (first) {
+          this.sink.warning(uri, statement.name.range, `duplicate subcircuit ${statement.name.text}: SPICE engines keep the first definition`, {
+            related: [{ location: { uri: first.uri, range: first.statement.name.range }, message: 'the first definition' }],
+          });
+          continue;
+        }
+        frame.subcircuits.set(key, { statement, uri, frame });
+      } else if (statement.kind === 'model') {
+        const key = statement.name.text.toLowerCase();
+        const first = frame.models.get(key);
+        if (first) {
+          this.sink.warning(
+            uri,
+            statement.name.range,
+            `duplicate model ${statement.name.text}: SPICE engines keep the first definition (line ${first.location.range.start.line + 1}), so this one is ignored`,
+            { related: [{ location: first.location, message: 'the definition in use' }] },
+          );
+          continue;
+        }
+        const model = readModel(statement, uri, frame.params, this.sink);
+        frame.models.set(key, model);
+        this.models.set(frame.prefix.toLowerCase() + key, model);
+      } else if (statement.kind === 'global' && frame.prefix !== '') {
+        for (const node of statement.nodes) this.globals.add(node.text.toLowerCase());
+      }
+    }
+  }
+
+  private findModel(frame: Frame, name: string): Model | undefined {
+    const key = name.toLowerCase();
+    for (let f: Frame | undefined = frame; f; f = f.parent) {
+      const model = f.models.get(key);
+      if (model) return model;
+    }
+    return undefined;
+  }
+
+  private findSubcircuit(frame: Frame, name: string): SubcircuitDefinition | undefined {
+    const key = name.toLowerCase();
+    for (let f: Frame | undefined = frame; f; f = f.parent) {
+      const definition = f.subcircuits.get(key);
+      if (definition) return definition;
+    }
+    return undefined;
+  }
+
+  // ---------------------------------------------------------- nodes
+
+  private canonicalNode(name: string): string {
+    const key = name.toLowerCase();
+    const existing = this.nodeNames.get(key);
+    if (existing !== undefined) return existing;
+    this.nodeNames.set(key, name);
+    this.nodes.push(name);
+    return name;
+  }
+
+  private node(frame: Frame, name: string): string {
+    const key = name.toLowerCase();
+    if (key === GROUND || key === GROUND_ALIAS) return GROUND;
+    if (this.globals.has(key)) return this.canonicalNode(name);
+    const port = frame.ports.get(key);
+    if (port !== undefined) return port;
+    return this.canonicalNode(frame.prefix + name);
+  }
+
+  // ------------------------------------------------------- elements
+
+  private walk(located: Located[], frame: Frame): void {
+    let pending: DirectiveComment[] = [];
+    for (const { statement, uri } of located) {
+      if (statement.kind === 'comment') {
+        const match = DIRECTIVE.exec(statement.text);
+        if (match) {
+          const directive: DirectiveComment = {
+            text: statement.text.slice(match[0].length).trim(),
+            location: { uri, range: statement.range },
+            inline: false,
+            nextElement: undefined,
+            scope: frame.prefix,
+          };
+          this.directives.push(directive);
+          pending.push(directive);
+        }
+        continue;
+      }
+      const name = statement.kind === 'element' ? frame.prefix + statement.name.text : undefined;
+      if (name !== undefined) {
+        for (const directive of pending) directive.nextElement = name;
+        pending = [];
+      }
+      const inline = statement.comment;
+      if (inline) {
+        const match = DIRECTIVE.exec(inline.text);
+        if (match) {
+          this.directives.push({
+            text: inline.text.slice(match[0].length).trim(),
+            location: { uri, range: inline.range },
+            inline: true,
+            nextElement: name,
+            scope: frame.prefix,
+          });
+        }
+      }
+      if (statement.kind === 'element') this.element(statement, uri, frame);
+    }
+  }
+
+  private element(statement: ElementStatement, uri: string, frame: Frame): void {
+    if (this.elements.length >= MAXIMUM_ELEMENTS) {
+      if (!this.budgetReported) {
+        this.budgetReported = true;
+        this.sink.error(uri, statement.range, `the circuit has more than ${MAXIMUM_ELEMENTS} elements once its subcircuits are expanded; the rest is not read`);
+      }
+      return;
+    }
+    const key = statement.name.text.toLowerCase();
+    const first = frame.elementNames.get(key);
+    if (first) {
+      this.sink.error(
+        uri,
+        statement.name.range,
+        `duplicate element name ${statement.name.text}${frame.prefix ? ` in subcircuit instance ${frame.prefix.slice(0, -1)}` : ''}: SPICE engines reject it; this line is not read`,
+        { related: [{ location: first, message: 'the first element of that name' }] },
+      );
+      return;
+    }
+    const location: SourceLocation = { uri, range: statement.range };
+    frame.elementNames.set(key, { uri, range: statement.name.range });
+    if (statement.letter === 'X') {
+      this.instantiate(statement, uri, frame);
+      return;
+    }
+    const context: ElementContext = {
+      name: frame.prefix + statement.name.text,
+      prefix: frame.prefix,
+      location,
+      instances: frame.instances,
+      uri,
+      sink: this.sink,
+      node: (field: NodeField) => this.node(frame, field.text),
+      value: (field, letter) => frame.params.evaluateField(field, uri, letter),
+      model: (name) => this.findModel(frame, name),
+      options: this.options,
+      temperature: this.temperature ?? DEFAULT_TEMPERATURE,
+      times: this.times,
+    };
+    const element = readElement(statement, context);
+    if (element) this.elements.push(element);
+  }
+
+  private instantiate(statement: ElementStatement, uri: string, frame: Frame): void {
+    const positional: NodeField[] = [];
+    const overrides: Extract<ElementStatement['fields'][number], { kind: 'assign' }>[] = [];
+    for (const field of statement.fields) {
+      if (field.kind === 'assign') overrides.push(field);
+      else if (field.kind === 'word' && /^params:?$/i.test(field.text)) continue;
+      else if (field.kind === 'word' || field.kind === 'number') positional.push(field);
+      else this.sink.warning(uri, field.range, `${field.kind === 'expression' ? field.text : 'this list'} is not understood on a subcircuit instance line and is ignored`);
+    }
+    const subcircuitName = positional.pop();
+    if (!subcircuitName) {
+      this.sink.error(uri, statement.range, `${statement.name.text} names no subcircuit (X1 node… SUBCIRCUIT [params])`);
+      return;
+    }
+    const definition = this.findSubcircuit(frame, subcircuitName.text);
+    if (!definition) {
+      this.sink.error(uri, subcircuitName.range, `subcircuit ${subcircuitName.text} not found: ${frame.prefix}${statement.name.text} is not checked`);
+      return;
+    }
+    const ports = definition.statement.ports;
+    if (positional.length !== ports.length) {
+      this.sink.error(
+        uri,
+        statement.range,
+        `${statement.name.text} connects ${positional.length} node${positional.length === 1 ? '' : 's'}, but subcircuit ${definition.statement.name.text} has ${ports.length} port${ports.length === 1 ? '' : 's'} (${ports.map((p) => p.text).join(' ') || 'none'})`,
+        { related: [{ location: { uri: definition.uri, range: definition.statement.name.range }, message: 'the subcircuit' }] },
+      );
+      return;
+    }
+    const instanceName = frame.prefix + statement.name.text;
+    const recursion = frame.active.findIndex((a) => a.definition === definition.statement);
+    if (recursion >= 0) {
+      const chain = [...frame.active.slice(recursion).map((a) => a.instance), instanceName].join(' → ');
+      this.sink.error(uri, statement.range, `subcircuit ${definition.statement.name.text} contains itself (${chain}); it is not expanded`);
+      return;
+    }
+    if (frame.active.length >= MAXIMUM_SUBCIRCUIT_DEPTH) {
+      this.sink.error(uri, statement.range, `subcircuits are nested more than ${MAXIMUM_SUBCIRCUIT_DEPTH} deep; ${instanceName} is not expanded`);
+      return;
+    }
+    // Instance values are evaluated where the instance is written; the defaults inside the subcircuit.
+    const scope = definition.frame.params.child();
+    const declared = new Set(definition.statement.params.map((p) => p.key.text.toLowerCase()));
+    for (const override of overrides) {
+      const key = override.key.text;
+      if (!declared.has(key.toLowerCase())) {
+        this.sink.warning(
+          uri,
+          override.key.range,
+          `subcircuit ${definition.statement.name.text} declares no parameter ${key}; it is ignored`,
+        );
+        continue;
+      }
+      scope.setValue(key, frame.params.evaluateField(override.value, uri), uri, override.range, true);
+    }
+    for (const parameter of definition.statement.params) scope.define(parameter.key.text, parameter.value, definition.uri, parameter.range);
+    const portMap = new Map<string, string>();
+    ports.forEach((port, index) => portMap.set(port.text.toLowerCase(), this.node(frame, positional[index]!.text)));
+    const inner: Frame = {
+      prefix: `${instanceName}.`,
+      parent: definition.frame,
+      ports: portMap,
+      params: scope,
+      subcircuits: new Map(),
+      models: new Map(),
+      instances: [...frame.instances, { uri, range: statement.range }],
+      active: [...frame.active, { definition: definition.statement, instance: instanceName }],
+      elementNames: new Map(),
+    };
+    const body = this.prepare(this.expand(definition.statement.body, definition.uri), inner);
+    this.register(body, inner);
+    this.walk(body, inner);
+  }
+
+  // ------------------------------------------- references between elements
+
+  /**
+   * F, H and W name a controlling voltage source, K two inductors: check that
+   * they exist and use the names as first written. One that does not exist
+   * leaves its element unmodeled.
+   */
+  private resolveReferences(): void {
+    const byName = new Map<string, Element>();
+    for (const element of this.elements) if (!byName.has(element.name.toLowerCase())) byName.set(element.name.toLowerCase(), element);
+    const find = (name: string, type: string, prefix: string): Element | undefined => {
+      const local = byName.get(name.toLowerCase());
+      if (local?.type === type) return local;
+      // Not in the subcircuit: a top-level element of that name.
+      const global = prefix ? byName.get(name.slice(prefix.length).toLowerCase()) : undefined;
+      return global?.type === type ? global : undefined;
+    };
+    const prefixOf = (element: Element) => element.name.slice(0, element.name.length - (element.name.split('.').pop()?.length ?? 0));
+    this.elements.forEach((element, index) => {
+      if (element.type === 'F' || element.type === 'H' || element.type === 'W') {
+        const source = find(element.controlSource, 'V', prefixOf(element));
+        if (source) {
+          element.controlSource = source.name;
+          return;
+        }
+        const written = element.controlSource.slice(prefixOf(element).length);
+        this.sink.error(element.location.uri, element.location.range, `${element.name} is controlled by the current of ${written}, which is not a voltage source in this circuit`);
+        this.elements[index] = {
+          type: 'unmodeled',
+          letter: element.type,
+          name: element.name,
+          nodes: element.nodes,
+          location: element.location,
+          instances: element.instances,
+          reason: `its controlling source ${written} does not exist`,
+        };
+      } else if (element.type === 'K') {
+        const inductors = element.inductors.map((name) => find(name, 'L', prefixOf(element)));
+        const missing = element.inductors.filter((_, i) => !inductors[i]).map((n) => n.slice(prefixOf(element).length));
+        if (missing.length === 0) {
+          element.inductors = inductors.map((l) => l!.name);
+          return;
+        }
+        this.sink.error(element.location.uri, element.location.range, `${element.name} couples ${missing.join(' and ')}, which ${missing.length === 1 ? 'is not an inductor' : 'are not inductors'} in this circuit`);
+      }
+    });
+  }
+
+  // ---------------------------------------------------- ambiguous values
+
+  /** `4k7` reads as 4 kΩ in every SPICE engine: say so, with the readings the writer may have meant. */
+  private checkAmbiguous(uri: string, text: string, range: Range, letter: string): void {
+    const reading = readSpiceNumber(text);
+    if (!reading || !isAmbiguousNumber(reading)) return;
+    const unit = unitOfElement(letter);
+    const intended = this.intendedReading(text, letter);
+    let message = `${text} is read as ${formatQuantity(reading.value, unit)} by SPICE engines (the ${reading.ignored} is ignored)`;
+    const suggestions: { title: string; edits: { location: SourceLocation; newText: string }[] }[] = [];
+    const location = { uri, range };
+    if (intended) {
+      message += `; ${intended.convention} it means ${formatQuantity(intended.value, unit)}`;
+      const exact = formatSpiceNumber(intended.value);
+      suggestions.push({ title: `Write ${exact} (${formatQuantity(intended.value, unit)})`, edits: [{ location, newText: exact }] });
+    }
+    const engine = formatSpiceNumber(reading.value);
+    suggestions.push({ title: `Write ${engine} (${formatQuantity(reading.value, unit)}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
+    this.sink.report('warning', 'ambiguous-value', uri, range, message, { suggestions });
+  }
+
+  private intendedReading(text: string, letter: string): { value: number; convention: string } | undefined {
+    switch (letter.toUpperCase()) {
+      case 'R':
+      case 'C': {
+        const value = readMarkingCode(text, letter);
+        return value === undefined ? undefined : { value, convention: 'as a marking code (IEC 60062)' };
+      }
+      case 'L': {
+        // Inductors are marked like capacitors: the letter (n, u, m) is the decimal point and the scale.
+        const value = readMarkingCode(text, 'C');
+        return value === undefined ? undefined : { value, convention: 'as a marking code (IEC 60062)' };
+      }
+      case 'V': {
+        // `3V3` for 3.3 V: how supply rails are named on schematics (common practice, no source).
+        const match = /^(\d+)v(\d+)$/i.exec(text);
+        return match ? { value: Number(`${match[1]}.${match[2]}`), convention: 'written as a rail name' } : undefined;
+      }
+      default:
+        return undefined;
+    }
+  }
+}
