@@ -60,7 +60,11 @@ export interface NumberField {
   range: Range;
 }
 
-/** A `{…}` or `'…'` expression. `expr` is undefined when its text does not parse (a diagnostic says why). */
+/**
+ * A `{…}` or `'…'` expression, or an undelimited one (`.param a = 2*b`, a `.func` body, an `.if`
+ * condition). `text` is the source text that `range` covers, delimiters included.
+ * `expr` is undefined when its text does not parse (a diagnostic says why).
+ */
 export interface ExpressionField {
   kind: 'expression';
   text: string;
@@ -71,7 +75,10 @@ export interface ExpressionField {
 /** `key=value`; the value may itself be a group, e.g. `ic=(1,2)`. */
 export interface AssignField {
   kind: 'assign';
+  /** The key as written; for a group key such as `v(out)` in `.ic v(out)=1`, its whole text. */
   key: WordField;
+  /** Set when the key is a group (`v(out)=1`): the group as parsed. */
+  keyGroup?: GroupField;
   value: Field;
   range: Range;
 }
@@ -98,6 +105,8 @@ interface StatementBase {
   range: Range;
   /** An inline comment at the end of the statement's (last) line. */
   comment?: InlineComment;
+  /** True when the line has a syntax error (a diagnostic says where): the fields are what could be read. */
+  incomplete?: boolean;
 }
 
 export interface TitleStatement extends StatementBase {

@@ -1,0 +1,270 @@
+// Expressions inside `{…}` and `'…'`, in `.param` values, `.func` bodies and `.if`
+// conditions. Precedence, loosest first: `?:`, `||`, `&&`, comparisons, `+ -`,
+// `* / %`, unary `- + !`, power `^`/`**` (right-associative). Numbers take SPICE
+// scale factors (`2*1k`, `1meg`), read by the one value reader.
+
+import { createToken, EmbeddedActionsParser, EOF, Lexer, type IToken, type TokenType } from 'chevrotain';
+import type { Expr, Range } from './ast.js';
+import type { LineIndex } from './positions.js';
+import { readSpiceNumber } from './values.js';
+
+const Blank = createToken({ name: 'Blank', pattern: /[ \t\r\n\f\v\uFEFF]+/, group: Lexer.SKIPPED });
+const NumberLiteral = createToken({ name: 'NumberLiteral', pattern: /(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?[A-Za-z_]*/ });
+const Identifier = createToken({ name: 'Identifier', pattern: /[A-Za-z_@][\w.$#@[\]]*/ });
+const Power = createToken({ name: 'Power', pattern: /\*\*|\^/ });
+const Times = createToken({ name: 'Times', pattern: /[*/%]/ });
+const Plus = createToken({ name: 'Plus', pattern: /[+-]/ });
+const Comparison = createToken({ name: 'Comparison', pattern: /==|!=|<=|>=|<|>/ });
+const Not = createToken({ name: 'Not', pattern: '!' });
+const And = createToken({ name: 'And', pattern: '&&' });
+const Or = createToken({ name: 'Or', pattern: '||' });
+const Question = createToken({ name: 'Question', pattern: '?' });
+const Colon = createToken({ name: 'Colon', pattern: ':' });
+const Open = createToken({ name: 'Open', pattern: '(' });
+const Close = createToken({ name: 'Close', pattern: ')' });
+const Separator = createToken({ name: 'Separator', pattern: ',' });
+
+// Order matters where one operator is the prefix of another (`**` before `*`, `!=` before `!`).
+const expressionTokens: TokenType[] = [
+  Blank,
+  NumberLiteral,
+  Identifier,
+  Power,
+  Times,
+  Plus,
+  Comparison,
+  Not,
+  And,
+  Or,
+  Question,
+  Colon,
+  Open,
+  Close,
+  Separator,
+];
+
+const expressionLexer = new Lexer(expressionTokens, { positionTracking: 'onlyOffset', ensureOptimizations: true });
+
+type BinaryOp = Extract<Expr, { kind: 'binary' }>['op'];
+
+class ExpressionParser extends EmbeddedActionsParser {
+  /** Maps the lexed slice's offsets into the whole text. */
+  base = 0;
+  index: LineIndex | undefined;
+
+  constructor() {
+    super(expressionTokens, { recoveryEnabled: false, maxLookahead: 1 });
+    this.performSelfAnalysis();
+  }
+
+  private range(start: number, end: number): Range {
+    return this.index!.range(this.base + start, this.base + end);
+  }
+
+  private tokenRange(token: IToken): Range {
+    return this.range(token.startOffset, token.startOffset + token.image.length);
+  }
+
+  private join(left: Expr, right: Expr): Range {
+    return { start: left.range.start, end: right.range.end };
+  }
+
+  whole = this.RULE('whole', (): Expr => {
+    const expr = this.SUBRULE(this.ternary);
+    this.CONSUME(EOF);
+    return expr;
+  });
+
+  ternary = this.RULE('ternary', (): Expr => {
+    const condition = this.SUBRULE(this.logicalOr);
+    let result = condition;
+    this.OPTION(() => {
+      this.CONSUME(Question);
+      const whenTrue = this.SUBRULE1(this.ternary);
+      this.CONSUME(Colon);
+      const whenFalse = this.SUBRULE2(this.ternary);
+      result = this.ACTION(() => ({
+        kind: 'ternary' as const,
+        condition,
+        whenTrue,
+        whenFalse,
+        range: this.join(condition, whenFalse),
+      }));
+    });
+    return result;
+  });
+
+  private binaryChain(name: string, operand: () => () => Expr, operator: TokenType) {
+    return this.RULE(name, (): Expr => {
+      let left = this.subrule(0, operand());
+      this.MANY(() => {
+        const op = this.CONSUME(operator);
+        const right = this.subrule(1, operand());
+        left = this.ACTION(() => ({
+          kind: 'binary' as const,
+          op: op.image as BinaryOp,
+          left,
+          right,
+          range: this.join(left, right),
+        }));
+      });
+      return left;
+    });
+  }
+
+  logicalOr: () => Expr = this.binaryChain('logicalOr', () => this.logicalAnd, Or);
+  logicalAnd: () => Expr = this.binaryChain('logicalAnd', () => this.comparison, And);
+  comparison: () => Expr = this.binaryChain('comparison', () => this.sum, Comparison);
+  sum: () => Expr = this.binaryChain('sum', () => this.product, Plus);
+  product: () => Expr = this.binaryChain('product', () => this.unary, Times);
+
+  unary = this.RULE('unary', (): Expr => {
+    return this.OR([
+      {
+        ALT: () => {
+          const op = this.OR1([{ ALT: () => this.CONSUME(Plus) }, { ALT: () => this.CONSUME(Not) }]);
+          const operand = this.SUBRULE(this.unary);
+          return this.ACTION(() => ({
+            kind: 'unary' as const,
+            op: op.image as '-' | '+' | '!',
+            operand,
+            range: { start: this.tokenRange(op).start, end: operand.range.end },
+          }));
+        },
+      },
+      { ALT: () => this.SUBRULE(this.power) },
+    ]);
+  });
+
+  // Right-associative, and binds tighter than unary minus: -2^2 = -(2^2), 2^-1 = 2^(-1).
+  power = this.RULE('power', (): Expr => {
+    const base = this.SUBRULE(this.primary);
+    let result = base;
+    this.OPTION(() => {
+      const op = this.CONSUME(Power);
+      const exponent = this.SUBRULE(this.unary);
+      result = this.ACTION(() => ({
+        kind: 'binary' as const,
+        op: op.image as '^' | '**',
+        left: base,
+        right: exponent,
+        range: this.join(base, exponent),
+      }));
+    });
+    return result;
+  });
+
+  primary = this.RULE('primary', (): Expr => {
+    return this.OR([
+      {
+        ALT: () => {
+          const token = this.CONSUME(NumberLiteral);
+          return this.ACTION(() => ({
+            kind: 'num' as const,
+            value: readSpiceNumber(token.image)?.value ?? Number.NaN,
+            text: token.image,
+            range: this.tokenRange(token),
+          }));
+        },
+      },
+      {
+        ALT: () => {
+          const name = this.CONSUME(Identifier);
+          let call: { args: Expr[]; close: IToken } | undefined;
+          this.OPTION(() => {
+            this.CONSUME(Open);
+            const args: Expr[] = [];
+            this.MANY_SEP({
+              SEP: Separator,
+              DEF: () => {
+                const arg = this.SUBRULE(this.ternary);
+                this.ACTION(() => args.push(arg));
+              },
+            });
+            const close = this.CONSUME(Close);
+            call = { args, close };
+          });
+          return this.ACTION((): Expr => {
+            if (!call) return { kind: 'ident', name: name.image, range: this.tokenRange(name) };
+            return {
+              kind: 'call',
+              name: name.image,
+              args: call.args,
+              range: this.range(name.startOffset, call.close.startOffset + 1),
+            };
+          });
+        },
+      },
+      {
+        ALT: () => {
+          this.CONSUME1(Open);
+          const inner = this.SUBRULE1(this.ternary);
+          this.CONSUME1(Close);
+          return inner;
+        },
+      },
+    ]);
+  });
+}
+
+let parser: ExpressionParser | undefined;
+
+export interface ExpressionProblem {
+  message: string;
+  range: Range;
+}
+
+export interface ExpressionReading {
+  expr: Expr | undefined;
+  problem: ExpressionProblem | undefined;
+}
+
+/**
+ * `+` continuation markers and `*` comment lines inside a multi-line expression are not
+ * part of it; they become blanks so that offsets still match the text.
+ */
+function blankContinuations(source: string): string {
+  if (!/[\r\n]/.test(source)) return source;
+  return source.replace(/([\r\n][ \t]*)(\+|\*[^\r\n]*)/g, (_all, before: string, marker: string) => before + ' '.repeat(marker.length));
+}
+
+/** Parses `source`, which is written at `base` in the text that `index` describes. Never throws. */
+export function readExpression(source: string, base: number, index: LineIndex): ExpressionReading {
+  const lexed = expressionLexer.tokenize(blankContinuations(source));
+  if (lexed.errors.length > 0) {
+    const error = lexed.errors[0]!;
+    const character = source.slice(error.offset, error.offset + Math.max(1, error.length));
+    return {
+      expr: undefined,
+      problem: {
+        message: `unexpected \`${character}\` in the expression`,
+        range: index.range(base + error.offset, base + error.offset + Math.max(1, error.length)),
+      },
+    };
+  }
+  if (lexed.tokens.length === 0) {
+    return { expr: undefined, problem: { message: 'the expression is empty', range: index.range(base, base + source.length) } };
+  }
+  parser ??= new ExpressionParser();
+  parser.index = index;
+  parser.base = base;
+  parser.input = lexed.tokens;
+  const expr = parser.whole();
+  const error = parser.errors[0];
+  parser.index = undefined;
+  if (!error || expr === undefined) {
+    if (!error && expr !== undefined) return { expr, problem: undefined };
+  }
+  const token = error?.token;
+  if (!token || token.tokenType === EOF || Number.isNaN(token.startOffset)) {
+    const end = base + source.length;
+    return { expr: undefined, problem: { message: 'the expression ends too early', range: index.range(end, end) } };
+  }
+  return {
+    expr: undefined,
+    problem: {
+      message: `unexpected \`${token.image}\` in the expression`,
+      range: index.range(base + token.startOffset, base + token.startOffset + token.image.length),
+    },
+  };
+}
