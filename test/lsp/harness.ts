@@ -25,6 +25,7 @@ export interface StartOptions {
 
 export interface Status {
   uri: string;
+  version: number;
   errors: number;
   warnings: number;
   milliseconds: number;

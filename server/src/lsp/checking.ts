@@ -33,8 +33,6 @@ export class Checker {
   private readonly states = new Map<string, DocumentState>();
   /** target uri → analysed document uri → its diagnostics in the target. */
   private readonly published = new Map<string, Map<string, Diagnostic[]>>();
-  /** Called after each publish, for tests and the benchmark to wait on. */
-  onPublished: (uri: string) => void = () => {};
 
   constructor(
     private readonly connection: Connection,
@@ -139,8 +137,7 @@ export class Checker {
     });
     if (!contributions.has(uri)) contributions.set(uri, []);
     this.replaceContributions(uri, contributions, version);
-    this.sendStatus(uri, analysis.milliseconds);
-    this.onPublished(uri);
+    this.sendStatus(uri, version, analysis.milliseconds);
   }
 
   /** Replaces what the analysis of `analyzed` contributes to each file, and publishes the files that changed. */
@@ -164,10 +161,11 @@ export class Checker {
     return dedupe([...(this.published.get(uri)?.values() ?? [])].flat());
   }
 
-  private sendStatus(uri: string, milliseconds: number): void {
+  private sendStatus(uri: string, version: number, milliseconds: number): void {
     const shown = this.shown(uri);
     const status: StatusParams = {
       uri,
+      version,
       errors: shown.filter((d) => d.severity === DiagnosticSeverity.Error).length,
       warnings: shown.filter((d) => d.severity === DiagnosticSeverity.Warning).length,
       milliseconds: Math.round(milliseconds * 10) / 10,
@@ -185,7 +183,6 @@ export class Checker {
       message: 'pnlint could not check this file: it stopped on an internal error (details in the pnlint output channel). Please report it with the netlist.',
     };
     this.replaceContributions(uri, new Map([[uri, [diagnostic]]]), version);
-    this.onPublished(uri);
   }
 }
 

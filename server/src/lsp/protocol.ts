@@ -12,6 +12,8 @@ export type OperatingPointResult = string;
 export const STATUS_NOTIFICATION = 'pnlint/status';
 export interface StatusParams {
   uri: string;
+  /** The document version the counts are for. */
+  version: number;
   errors: number;
   warnings: number;
   /** How long the analysis took. */
