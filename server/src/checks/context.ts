@@ -1,0 +1,89 @@
+// What every rule reads: the circuit, its corners and their solutions, each diode's kind,
+// ratings and operating points, the topology, and a way to ask for counterfactual solves
+// and for fixes. Built once per check by index.ts.
+import type { Circuit, Diode, Element, SourceLocation, VoltageSource } from '../netlist/circuit.js';
+import type { Finding, Fix } from '../findings.js';
+import type { Settings } from '../settings.js';
+import type { DiodeOperatingPoint, SolveResult } from '../sim/types.js';
+import type { CornerPlan } from './corners.js';
+import type { FixRequest, TheveninView } from './fix-request.js';
+import type { ValueSource } from './provenance.js';
+import type { DiodeRatings, ResistorRatings } from './ratings.js';
+import type { Topology } from './topology.js';
+import type { DiodeKind } from './vocabulary.js';
+
+export interface DiodeAtCorner {
+  plan: CornerPlan;
+  point: DiodeOperatingPoint;
+}
+
+export interface CheckedDiode {
+  element: Diode;
+  kind: DiodeKind;
+  /** Why it is that kind: "from directive on line 3", "forward voltage 1.92 V at 5 mA …". */
+  kindReason: string;
+  kindSource: ValueSource;
+  ratings: DiodeRatings;
+  /** Its operating point at every corner that solved. */
+  corners: DiodeAtCorner[];
+  /** Why it was not checked at all (unsolved, next to an unmodeled element); rules skip it. */
+  unchecked?: string;
+}
+
+export interface CheckContext {
+  circuit: Circuit;
+  settings: Settings;
+  plans: readonly CornerPlan[];
+  solves: readonly SolveResult[];
+  diodes: readonly CheckedDiode[];
+  resistors: ReadonlyMap<string, ResistorRatings>;
+  topology: Topology;
+  /** True when the circuit has capacitors or inductors, whose dynamics a DC solve leaves out. */
+  hasReactiveElements: boolean;
+  /** Solves a modified copy of the circuit at the given corners (a diode flipped, a probe inserted). */
+  solveVariant(variant: Circuit, plans: readonly CornerPlan[]): SolveResult[];
+  /** The rest of the circuit seen from a diode at one corner; undefined when it cannot be worked out. */
+  theveninView(diode: CheckedDiode, at: DiodeAtCorner): TheveninView | undefined;
+  /** Fixes for a finding, from the fix provider (verified by re-simulation there); records the request. */
+  fixesFor(request: FixRequest, finding: Finding): Fix[];
+  elementNamed(name: string): Element | undefined;
+}
+
+/** The probe step for a Thevenin view: small against a diode's forward voltage, large against solver tolerances (ours). */
+export const THEVENIN_PROBE_STEP = 0.02;
+
+/** The circuit with one element replaced (same nodes list: no new nodes). */
+export function replaceElement(circuit: Circuit, original: Element, replacement: Element): Circuit {
+  return { ...circuit, elements: circuit.elements.map((element) => (element === original ? replacement : element)) };
+}
+
+/** A name no element of the circuit has. */
+export function freshName(circuit: Circuit, base: string): string {
+  const taken = new Set(circuit.elements.map((element) => element.name.toLowerCase()));
+  let name = base;
+  for (let index = 2; taken.has(name.toLowerCase()); index++) name = `${base}${index}`;
+  return name;
+}
+
+/** The diode replaced by an ideal voltage source across its terminals (anode +), for probing the rest of the circuit. */
+export function probeSource(circuit: Circuit, diode: Diode, voltage: number): VoltageSource {
+  return {
+    type: 'V',
+    name: freshName(circuit, `Vprobe_${diode.name.replace(/\./g, '_')}`),
+    nodes: [diode.nodes[0]!, diode.nodes[1]!],
+    dc: voltage,
+    waveform: undefined,
+    location: diode.location,
+    instances: diode.instances,
+  };
+}
+
+/** "at V1 = 5.25 V (max corner)", with a quasi-static note when the corner is an instant of a waveform. */
+export function atCorner(plan: CornerPlan): string {
+  const where = plan.levels.length === 0 && plan.resistorSide === 0 && plan.corner.temperature === undefined ? 'at nominal values' : `at ${plan.description}`;
+  return plan.quasiStatic ? `${where}, quasi-static` : where;
+}
+
+export function relatedElement(element: Element, message: string): { location: SourceLocation; message: string } {
+  return { location: element.location, message };
+}

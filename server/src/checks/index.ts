@@ -1,0 +1,335 @@
+// The diode checks: from an elaborated circuit to findings, with each diode's kind,
+// ratings and operating point at every corner. Pure; the solver is the project's own.
+import type { Circuit, Diode, NetlistDiagnostic, SourceLocation } from '../netlist/circuit.js';
+import type { Finding, Fix } from '../findings.js';
+import { effectiveSettings, type WorkspaceConfig } from '../config.js';
+import type { Settings } from '../settings.js';
+import type { Corner, DiodeOperatingPoint, SolveOptions, SolveResult } from '../sim/types.js';
+import { hazardCautions } from './cautions.js';
+import { classifyDiode, probeForwardVoltage } from './classify.js';
+import { atCorner, replaceElement, probeSource, THEVENIN_PROBE_STEP, type CheckContext, type CheckedDiode, type DiodeAtCorner } from './context.js';
+import { planCorners, type CornerPlan, type SupplyLimits } from './corners.js';
+import { readDirectives, type Directives } from './directives.js';
+import { defaultSolver } from './engine.js';
+import { makeFinding } from './finding.js';
+import type { FixProvider, FixRequest, TheveninView } from './fix-request.js';
+import { declaredKind, describeRating, diodeRatings, resistorRatings, type ResistorRatings } from './ratings.js';
+import { RULES } from './rules/index.js';
+import type { Solver } from './solver.js';
+import { applySuppressions } from './suppression.js';
+import { buildTopology, nodesWithinRails } from './topology.js';
+import { RATING_SYMBOLS, type DiodeKind, type DiodeRatingKey } from './vocabulary.js';
+import type { ValueSource } from './provenance.js';
+
+export type { FixProvider, FixRequest, TheveninView } from './fix-request.js';
+export type { CornerPlan } from './corners.js';
+export type { DiodeKind } from './vocabulary.js';
+
+export interface CheckOptions extends SolveOptions {
+  /** Turns each finding's fix request into verified fixes (server/src/fixes). None: findings carry no fixes. */
+  fixProvider?: FixProvider;
+}
+
+export interface RatingReport {
+  key: DiodeRatingKey;
+  /** The datasheet symbol: VRRM, IF, … */
+  symbol: string;
+  value: number;
+  unit: string;
+  source: ValueSource;
+  /** "VRRM 25 V from directive on line 3". */
+  text: string;
+}
+
+export interface MarginReport {
+  key: DiodeRatingKey;
+  /** What the diode sees (V, A or W). */
+  used: number;
+  limit: number;
+  /** used / limit. */
+  fraction: number;
+}
+
+export interface DiodeCornerReport {
+  corner: string;
+  description: string;
+  quasiStatic: boolean;
+  /** Undefined when the circuit did not solve at this corner. */
+  point: DiodeOperatingPoint | undefined;
+  margins: MarginReport[];
+}
+
+export interface DiodeReport {
+  element: string;
+  model: string;
+  location: SourceLocation;
+  kind: DiodeKind;
+  kindReason: string;
+  ratings: RatingReport[];
+  corners: DiodeCornerReport[];
+  /** Why it could not be checked, when it could not. */
+  unchecked?: string;
+}
+
+export interface CheckResult {
+  /** Rules, directive diagnostics, honesty diagnostics and cautions, after suppression and severity settings. */
+  findings: Finding[];
+  diodes: DiodeReport[];
+  corners: Corner[];
+  /** How each corner is described in messages, in the order of `corners`. */
+  cornerPlans: CornerPlan[];
+  solves: SolveResult[];
+  /** Each finding's fix request, for the fixes module and code actions. */
+  fixRequests: { finding: Finding; request: FixRequest }[];
+}
+
+/** Diagnostics of the netlist and the solver that say what could not be checked (passed through). */
+const HONESTY_CODES: ReadonlySet<string> = new Set(['unknown-model', 'unmodeled-element', 'floating-node', 'unsolved-circuit']);
+
+export function checkCircuit(
+  circuit: Circuit,
+  baseSettings: Settings,
+  config: WorkspaceConfig | undefined,
+  options?: CheckOptions,
+): CheckResult {
+  return checkWith(defaultSolver, circuit, baseSettings, config, options);
+}
+
+/** The same check with a given solver (the engine is injected so that this module does not own device physics). */
+export function checkWith(
+  solve: Solver,
+  circuit: Circuit,
+  baseSettings: Settings,
+  config: WorkspaceConfig | undefined,
+  options: CheckOptions = {},
+): CheckResult {
+  const settings = effectiveSettings(baseSettings, config);
+  const directives = readDirectives(circuit);
+  const findings: Finding[] = [...directives.findings];
+
+  const resistors = new Map<string, ResistorRatings>();
+  const resistorTolerances = new Map<string, number>();
+  for (const element of circuit.elements) {
+    if (element.type !== 'R') continue;
+    const ratings = resistorRatings(element, settings, directives, config);
+    resistors.set(element.name, ratings);
+    if (ratings.tolerance && ratings.tolerance.value > 0) resistorTolerances.set(element.name, ratings.tolerance.value);
+  }
+  const plans = planCorners(circuit, settings, supplyLimits(circuit, directives, config), resistorTolerances);
+  const solveOptions: SolveOptions = {};
+  if (options.budgetMilliseconds !== undefined) solveOptions.budgetMilliseconds = options.budgetMilliseconds;
+  if (options.iterationLimit !== undefined) solveOptions.iterationLimit = options.iterationLimit;
+  if (options.cancellation !== undefined) solveOptions.cancellation = options.cancellation;
+  const solves = solve(circuit, plans.map((plan) => plan.corner), solveOptions);
+
+  findings.push(...honestyFindings(circuit, solves));
+  const topology = buildTopology(circuit);
+  const diodes = checkedDiodes(circuit, plans, solves, directives, config, topology, solve, solveOptions);
+  for (const diode of diodes) {
+    if (diode.unchecked) {
+      const rule = diode.unchecked.includes('unmodeled') ? 'unmodeled-element' : 'unsolved-circuit';
+      findings.push(makeFinding(rule, 'info', `${diode.element.name} was not checked: ${diode.unchecked}.`, diode.element.location, { element: diode.element.name }));
+    }
+  }
+
+  const fixRequests: { finding: Finding; request: FixRequest }[] = [];
+  const context: CheckContext = {
+    circuit,
+    settings,
+    plans,
+    solves,
+    diodes,
+    resistors,
+    topology,
+    hasReactiveElements: circuit.elements.some((element) => element.type === 'C' || element.type === 'L'),
+    solveVariant: (variant, variantPlans) => solve(variant, variantPlans.map((plan) => plan.corner), solveOptions),
+    theveninView: (diode, at) => theveninView(circuit, diode, at, solve, solveOptions),
+    fixesFor: (request, finding): Fix[] => {
+      fixRequests.push({ finding, request });
+      if (!options.fixProvider) return [];
+      try {
+        return options.fixProvider(request, finding, { circuit, settings, plans });
+      } catch {
+        return []; // a fix that cannot be built is not offered; the finding stands
+      }
+    },
+    elementNamed: (name) => circuit.elements.find((element) => element.name === name),
+  };
+  for (const rule of RULES) {
+    if (options.cancellation?.isCancellationRequested) break;
+    findings.push(...rule.check(context));
+  }
+  findings.push(...hazardCautions(circuit, solves));
+
+  const visible = applySuppressions(findings, circuit, directives, config)
+    .map((finding) => withSeverity(finding, settings))
+    .filter((finding): finding is Finding => finding !== undefined);
+  return {
+    findings: visible,
+    diodes: diodes.map((diode) => diodeReport(diode, plans, solves)),
+    corners: plans.map((plan) => plan.corner),
+    cornerPlans: plans,
+    solves,
+    fixRequests: fixRequests.filter((entry) => visible.includes(entry.finding)),
+  };
+}
+
+function supplyLimits(circuit: Circuit, directives: Directives, config: WorkspaceConfig | undefined): SupplyLimits[] {
+  const limits: SupplyLimits[] = [];
+  const names = new Set(circuit.elements.filter((element) => element.type === 'V' || element.type === 'I').map((element) => element.name.toLowerCase()));
+  for (const supply of [...(config?.supplies ?? []), ...directives.supplies]) {
+    if (!names.has(supply.source.toLowerCase())) continue;
+    const entry: SupplyLimits = { source: supply.source, description: supply.origin.description };
+    if (supply.min !== undefined) entry.min = supply.min;
+    if (supply.max !== undefined) entry.max = supply.max;
+    if (supply.tolerance !== undefined) entry.tolerance = supply.tolerance;
+    // A later range for the same source replaces the earlier one (directives over pnlint.json).
+    const existing = limits.findIndex((each) => each.source.toLowerCase() === supply.source.toLowerCase());
+    if (existing >= 0) limits.splice(existing, 1);
+    limits.push(entry);
+  }
+  return limits;
+}
+
+function honestyFindings(circuit: Circuit, solves: readonly SolveResult[]): Finding[] {
+  const seen = new Set<string>();
+  const findings: Finding[] = [];
+  const add = (diagnostic: NetlistDiagnostic, corner: string | undefined) => {
+    if (!HONESTY_CODES.has(diagnostic.code)) return;
+    const key = `${diagnostic.code}|${diagnostic.message}|${diagnostic.location.uri}|${diagnostic.location.range.start.offset}`;
+    if (seen.has(key)) return;
+    seen.add(key);
+    const severity = diagnostic.severity;
+    const message = corner && corner !== 'nominal' ? `${diagnostic.message} (corner ${corner})` : diagnostic.message;
+    findings.push(makeFinding(diagnostic.code, severity, message, diagnostic.location, { related: diagnostic.related ?? [] }));
+  };
+  for (const diagnostic of circuit.diagnostics) add(diagnostic, undefined);
+  for (const result of solves) {
+    for (const diagnostic of result.diagnostics) add(diagnostic, result.ok ? result.point.corner : result.corner);
+  }
+  return findings;
+}
+
+function checkedDiodes(
+  circuit: Circuit,
+  plans: readonly CornerPlan[],
+  solves: readonly SolveResult[],
+  directives: Directives,
+  config: WorkspaceConfig | undefined,
+  topology: ReturnType<typeof buildTopology>,
+  solve: Solver,
+  options: SolveOptions,
+): CheckedDiode[] {
+  // Nodes that an unmodeled element can move: the checks there would rest on a wrong number.
+  const tainted = new Map<string, string>();
+  for (const element of circuit.elements) {
+    if (element.type !== 'unmodeled') continue;
+    for (const node of element.nodes) for (const reached of nodesWithinRails(topology, node)) tainted.set(reached, element.name);
+  }
+  const forwardVoltages = new Map<string, number | undefined>();
+  const diodes: CheckedDiode[] = [];
+  for (const element of circuit.elements) {
+    if (element.type !== 'D') continue;
+    const corners: DiodeAtCorner[] = [];
+    plans.forEach((plan, index) => {
+      const result = solves[index];
+      const point = result?.ok ? result.point.diodes[element.name] : undefined;
+      if (point) corners.push({ plan, point });
+    });
+    const declared = declaredKind(circuit, element, directives, config);
+    let kind: DiodeKind;
+    let kindReason: string;
+    let kindSource: ValueSource;
+    if (declared) {
+      kind = declared.value;
+      kindReason = declared.source.description;
+      kindSource = declared.source;
+    } else {
+      const probeKey = `${element.model.name.toLowerCase()}|${element.area}|${element.temperature ?? ''}`;
+      if (!forwardVoltages.has(probeKey)) forwardVoltages.set(probeKey, probeForwardVoltage(circuit, element, solve, options));
+      const usedInBreakdown = corners.some((each) => each.point.region === 'breakdown');
+      const classification = classifyDiode(element, forwardVoltages.get(probeKey), usedInBreakdown);
+      kind = classification.kind;
+      kindReason = classification.reason;
+      kindSource = { origin: 'classification', description: classification.reason };
+    }
+    const diode: CheckedDiode = { element, kind, kindReason, kindSource, ratings: diodeRatings(circuit, element, kind, directives, config), corners };
+    const taintedBy = element.nodes.map((node) => tainted.get(node)).find((name) => name !== undefined);
+    if (taintedBy) diode.unchecked = `its part of the circuit includes the unmodeled element ${taintedBy}`;
+    else if (corners.length === 0) diode.unchecked = 'the circuit did not solve at any corner';
+    diodes.push(diode);
+  }
+  return diodes;
+}
+
+/** Replaces the diode by a voltage source at its own voltage and at a step below, and reads the change in current. */
+function theveninView(circuit: Circuit, diode: CheckedDiode, at: DiodeAtCorner, solve: Solver, options: SolveOptions): TheveninView | undefined {
+  const source = probeSource(circuit, diode.element as Diode, at.point.voltage);
+  const variant = replaceElement(circuit, diode.element, source);
+  const base = at.plan.corner;
+  const corners: Corner[] = [at.point.voltage, at.point.voltage - THEVENIN_PROBE_STEP].map((voltage, index) => ({
+    ...base,
+    name: `${base.name} probe ${index}`,
+    sources: { ...(base.sources ?? {}), [source.name]: voltage },
+  }));
+  const [atVoltage, belowVoltage] = solve(variant, corners, options);
+  if (!atVoltage?.ok || !belowVoltage?.ok) {
+    // The probe closes a loop of ideal voltage sources: an ideal source holds the diode's terminals.
+    const loop = [atVoltage, belowVoltage].some((result) => result && !result.ok && result.diagnostics.some((each) => each.code === 'unsolved-circuit'));
+    return loop ? { voltage: at.point.voltage, resistance: 0, corner: base.name } : undefined;
+  }
+  const current = atVoltage.point.branches[source.name];
+  const currentBelow = belowVoltage.point.branches[source.name];
+  if (current === undefined || currentBelow === undefined) return undefined;
+  const change = currentBelow - current;
+  const resistance = change > 0 ? THEVENIN_PROBE_STEP / change : Number.POSITIVE_INFINITY;
+  return { voltage: at.point.voltage + current * (Number.isFinite(resistance) ? resistance : 0), resistance, corner: base.name };
+}
+
+function withSeverity(finding: Finding, settings: Settings): Finding | undefined {
+  const override = settings.severities[finding.rule];
+  if (override === 'off') return undefined;
+  if (override) return { ...finding, severity: override };
+  return finding;
+}
+
+function diodeReport(diode: CheckedDiode, plans: readonly CornerPlan[], solves: readonly SolveResult[]): DiodeReport {
+  const ratings: RatingReport[] = (Object.entries(diode.ratings) as [DiodeRatingKey, { value: number; source: ValueSource }][]).map(([key, rated]) => ({
+    key,
+    symbol: RATING_SYMBOLS[key].symbol,
+    value: rated.value,
+    unit: RATING_SYMBOLS[key].unit,
+    source: rated.source,
+    text: describeRating(key, rated),
+  }));
+  const corners: DiodeCornerReport[] = plans.map((plan, index) => {
+    const result = solves[index];
+    const point = result?.ok ? result.point.diodes[diode.element.name] : undefined;
+    return { corner: plan.corner.name, description: atCorner(plan), quasiStatic: plan.quasiStatic, point, margins: point ? margins(diode, point) : [] };
+  });
+  const report: DiodeReport = {
+    element: diode.element.name,
+    model: diode.element.model.name,
+    location: diode.element.location,
+    kind: diode.kind,
+    kindReason: diode.kindReason,
+    ratings,
+    corners,
+  };
+  if (diode.unchecked) report.unchecked = diode.unchecked;
+  return report;
+}
+
+/** How much of each rating the diode uses at one operating point. */
+function margins(diode: CheckedDiode, point: DiodeOperatingPoint): MarginReport[] {
+  const result: MarginReport[] = [];
+  const add = (key: DiodeRatingKey, used: number) => {
+    const limit = diode.ratings[key]?.value;
+    if (limit !== undefined && limit > 0) result.push({ key, used, limit, fraction: used / limit });
+  };
+  if (point.current > 0) add('if', point.current);
+  if (point.voltage < 0 && diode.kind !== 'zener') add('vrrm', -point.voltage);
+  if (diode.kind === 'zener' && point.current < 0) add('izm', -point.current);
+  add('pd', Math.abs(point.power));
+  return result;
+}

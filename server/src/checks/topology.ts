@@ -1,0 +1,124 @@
+// Which elements meet at which node, counting only terminals that carry DC current:
+// a capacitor is open at DC, a controlled source's sensing pins and a MOSFET's gate
+// draw nothing. Rules use it to find a diode's series resistor, its parallel partners,
+// an inductor it freewheels, and the part of the circuit an unmodeled element touches.
+import { GROUND, type Circuit, type Element, type Resistor } from '../netlist/circuit.js';
+
+export interface Topology {
+  /** Node → elements with a current-carrying terminal on it. */
+  connections: Map<string, Element[]>;
+  /** Nodes held by an ideal voltage source to ground (supply rails), ground included. */
+  rails: Set<string>;
+}
+
+/** The terminals of an element that carry DC current. */
+export function currentNodes(element: Element): string[] {
+  switch (element.type) {
+    case 'C':
+    case 'K':
+      return [];
+    case 'E':
+    case 'G':
+    case 'S':
+      return element.nodes.slice(0, 2);
+    case 'Q':
+      return element.nodes.slice(0, 3);
+    case 'M':
+      return [element.nodes[0]!, element.nodes[2]!];
+    default:
+      return element.nodes;
+  }
+}
+
+export function buildTopology(circuit: Circuit): Topology {
+  const connections = new Map<string, Element[]>();
+  for (const element of circuit.elements) {
+    for (const node of new Set(currentNodes(element))) {
+      const list = connections.get(node) ?? [];
+      list.push(element);
+      connections.set(node, list);
+    }
+  }
+  const rails = new Set<string>([GROUND]);
+  for (const element of circuit.elements) {
+    if (element.type === 'V' && element.nodes.includes(GROUND)) for (const node of element.nodes) rails.add(node);
+  }
+  return { connections, rails };
+}
+
+const otherNode = (element: Element, node: string) => (element.nodes[0] === node ? element.nodes[1] : element.nodes[0]);
+
+/**
+ * Walks from `start` away from `from` while each node on the way is a plain series
+ * junction (exactly two current-carrying elements, neither end a rail), and returns the
+ * two-terminal elements passed. The chain is what carries the same current as `from`.
+ */
+export function seriesChain(topology: Topology, from: Element, start: string): Element[] {
+  const chain: Element[] = [];
+  let node = start;
+  let previous = from;
+  const visited = new Set<string>();
+  while (!topology.rails.has(node) && !visited.has(node)) {
+    visited.add(node);
+    const others = (topology.connections.get(node) ?? []).filter((element) => element !== previous);
+    if (others.length !== 1) break;
+    const next = others[0]!;
+    if (currentNodes(next).length !== 2) break;
+    chain.push(next);
+    const after = otherNode(next, node);
+    if (after === undefined) break;
+    previous = next;
+    node = after;
+  }
+  return chain;
+}
+
+/** The resistors in series with an element, on either side. */
+export function seriesResistors(topology: Topology, element: Element): Resistor[] {
+  const found: Resistor[] = [];
+  for (const node of element.nodes.slice(0, 2)) {
+    for (const each of seriesChain(topology, element, node)) if (each.type === 'R') found.push(each);
+  }
+  return found;
+}
+
+/**
+ * True when the element's two nodes are bridged by an inductor, alone or in a series
+ * chain (a coil with its winding resistance): the freewheel position.
+ */
+export function bridgesInductor(topology: Topology, element: Element): boolean {
+  const [first, second] = element.nodes;
+  for (const candidate of topology.connections.get(first!) ?? []) {
+    if (candidate === element || currentNodes(candidate).length !== 2) continue;
+    const path: Element[] = [candidate];
+    let node = otherNode(candidate, first!);
+    let previous = candidate;
+    const visited = new Set<string>([first!]);
+    while (node !== undefined && node !== second && !visited.has(node) && !topology.rails.has(node)) {
+      visited.add(node);
+      const others = (topology.connections.get(node) ?? []).filter((each) => each !== previous);
+      if (others.length !== 1 || currentNodes(others[0]!).length !== 2) break;
+      previous = others[0]!;
+      path.push(previous);
+      node = otherNode(previous, node);
+    }
+    if (node === second && path.some((each) => each.type === 'L')) return true;
+  }
+  return false;
+}
+
+/**
+ * Nodes reachable from `start` through current-carrying elements, stopping at supply
+ * rails and ground (an ideal source holds a rail whatever hangs on it).
+ */
+export function nodesWithinRails(topology: Topology, start: string): Set<string> {
+  const seen = new Set<string>();
+  const stack = [start];
+  while (stack.length > 0) {
+    const node = stack.pop()!;
+    if (seen.has(node) || topology.rails.has(node)) continue;
+    seen.add(node);
+    for (const element of topology.connections.get(node) ?? []) for (const next of element.nodes) if (!seen.has(next)) stack.push(next);
+  }
+  return seen;
+}
