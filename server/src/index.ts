@@ -5,3 +5,4 @@ export * from './sim/types.js';
 export * from './findings.js';
 export * from './settings.js';
 export * from './analysis.js';
+export * from './sim/index.js';

@@ -37,6 +37,12 @@ export interface OperatingPoint {
    */
   branches: Record<string, number>;
   diodes: Record<string, DiodeOperatingPoint>;
+  /**
+   * Element name → current (A) into the element at each of its nodes, in the element's node
+   * order (e.g. collector, base, emitter). They sum to zero per element; Kirchhoff's current
+   * law says they sum to zero per node.
+   */
+  terminals?: Record<string, number[]>;
   /** How it was reached, for the log and the hover. */
   method: 'newton' | 'gmin-stepping' | 'source-stepping';
   iterations: number;
@@ -58,4 +64,6 @@ export interface SolveOptions {
   /** Newton iterations allowed per attempt. */
   iterationLimit?: number;
   cancellation?: CancellationToken;
+  /** Node name → voltage to start Newton from (e.g. another corner's solution), instead of SPICE's cold start. */
+  initialGuess?: Record<string, number>;
 }

@@ -1,0 +1,176 @@
+// From an elaborated circuit to its equations: one device per simulated element, the
+// unknowns numbered, the matrix structure fixed. Done once; every corner reuses it.
+import type { Circuit, Element, NetlistDiagnostic } from '../netlist/circuit.js';
+import { GROUND } from '../netlist/circuit.js';
+import { SparseLU, SparseMatrix } from './algebra/index.js';
+import { DEFAULT_GMIN } from './constants.js';
+import { CcvsDevice } from './devices/ccvs.js';
+import { CccsDevice } from './devices/cccs.js';
+import { CurrentSourceDevice } from './devices/current-source.js';
+import { CurrentSwitchDevice } from './devices/current-switch.js';
+import { DiodeDevice } from './devices/diode.js';
+import { ResistorDevice } from './devices/resistor.js';
+import { VccsDevice } from './devices/vccs.js';
+import { VcvsDevice } from './devices/vcvs.js';
+import { VoltageSourceDevice } from './devices/voltage-source.js';
+import { VoltageSwitchDevice } from './devices/voltage-switch.js';
+import { circuitLocation, diagnoseStructure, isVoltageDefined } from './diagnose.js';
+import { CircuitSystem, StructureBuilder, type Device } from './mna.js';
+
+/** A node with no DC path to ground is tied to it through this conductance so the rest solves (ngspice's default gmin, 1e-12 S). */
+export const FLOATING_NODE_CONDUCTANCE = 1e-12;
+
+export interface CompiledCircuit {
+  readonly circuit: Circuit;
+  /** Found while compiling: unmodeled elements, floating nodes, loops of voltage sources. */
+  readonly diagnostics: readonly NetlistDiagnostic[];
+  /** Nodes that touch an element the solver leaves open: results there are not trustworthy. */
+  readonly unmodeledNodes: ReadonlySet<string>;
+  /** Nodes with no DC path to ground (their voltages are arbitrary). */
+  readonly floatingNodes: ReadonlySet<string>;
+  /** Set when the structure alone rules out any solution (e.g. a loop of voltage sources). */
+  readonly unsolvable: boolean;
+  /** The equations (internal to the solver). */
+  readonly system: CircuitSystem;
+  readonly matrix: SparseMatrix;
+  readonly lu: SparseLU;
+  /** Netlist node name → unknown number (ground 0). */
+  readonly nodeIndex: ReadonlyMap<string, number>;
+}
+
+function canonicalNode(name: string): string {
+  return name === GROUND || name.toLowerCase() === 'gnd' ? GROUND : name;
+}
+
+function createDevice(element: Element): Device | undefined {
+  switch (element.type) {
+    case 'R':
+      return new ResistorDevice(element);
+    case 'V':
+    case 'L':
+      return new VoltageSourceDevice(element);
+    case 'I':
+      return new CurrentSourceDevice(element);
+    case 'E':
+      return new VcvsDevice(element);
+    case 'G':
+      return new VccsDevice(element);
+    case 'F':
+      return new CccsDevice(element);
+    case 'H':
+      return new CcvsDevice(element);
+    case 'S':
+      return new VoltageSwitchDevice(element);
+    case 'W':
+      return new CurrentSwitchDevice(element);
+    case 'D':
+      return new DiodeDevice(element);
+    default:
+      return undefined; // C (open at DC), K (no effect at DC), unmodeled
+  }
+}
+
+/** How many nodes each element type needs (the rest of the solver indexes them freely). */
+const REQUIRED_NODES: Partial<Record<Element['type'], number>> = { R: 2, C: 2, L: 2, V: 2, I: 2, E: 4, G: 4, F: 2, H: 2, S: 4, W: 2, D: 2, Q: 3, M: 4 };
+
+export function compileCircuit(circuit: Circuit): CompiledCircuit {
+  const diagnostics: NetlistDiagnostic[] = [];
+  const unmodeledNodes = new Set<string>();
+  const leaveOpen = (element: Element, reason: string, severity: 'warning' | 'info' = 'warning'): void => {
+    diagnostics.push({
+      severity,
+      code: 'unmodeled-element',
+      message: `${element.name} is not simulated (${reason}); the circuit is solved with it left open, and checks that depend on its nodes are skipped`,
+      location: element.location,
+    });
+    for (const node of element.nodes) if (node !== GROUND) unmodeledNodes.add(node);
+  };
+
+  // Work on copies with ground folded, so that device code sees '0' only.
+  const elements: Element[] = circuit.elements.map((e) => (e.nodes.some((n) => canonicalNode(n) !== n) ? ({ ...e, nodes: e.nodes.map(canonicalNode) } as Element) : e));
+
+  // Voltage-defined elements, by lower-cased name, for F, H and W to find their control.
+  const branchOwners = new Map<string, Element>();
+  for (const element of elements) if (isVoltageDefined(element)) branchOwners.set(element.name.toLowerCase(), element);
+
+  const active: Element[] = [];
+  for (const element of elements) {
+    const required = REQUIRED_NODES[element.type];
+    if (required !== undefined && element.nodes.length < required) {
+      leaveOpen(element, `it has ${element.nodes.length} nodes where ${required} are needed`);
+      continue;
+    }
+    if (element.type === 'unmodeled') {
+      leaveOpen(element, element.reason);
+      continue;
+    }
+    if ((element.type === 'F' || element.type === 'H' || element.type === 'W') && !branchOwners.has(element.controlSource.toLowerCase())) {
+      leaveOpen(element, `its controlling source ${element.controlSource} is not a voltage source, inductor or E/H source of this circuit`);
+      continue;
+    }
+    if (element.type === 'C' || element.type === 'K') continue;
+    if (element.type === 'Q' || element.type === 'M') {
+      leaveOpen(element, 'transistors are not simulated yet');
+      continue;
+    }
+    active.push(element);
+  }
+
+  // Unknowns: every netlist node first (so that the node index is stable), then what devices add.
+  const nodeNames = [...new Set([...circuit.nodes.map(canonicalNode), ...elements.flatMap((e) => e.nodes)])].filter((n) => n !== GROUND);
+  const builder = new StructureBuilder(nodeNames);
+  const nodeIndex = new Map<string, number>(builder.nodeEntries());
+  const structure = diagnoseStructure({ ...circuit, elements }, active, nodeIndex, builder.size);
+  diagnostics.push(...structure.diagnostics);
+
+  const devices: Device[] = [];
+  for (const element of active) {
+    const device = createDevice(element);
+    if (!device) continue;
+    device.setup(builder);
+    devices.push(device);
+  }
+  const branchByName = new Map<string, number>();
+  for (const device of devices) {
+    const branch = (device as { branch?: number }).branch;
+    if (typeof branch === 'number' && isVoltageDefined(device.element)) branchByName.set(device.element.name.toLowerCase(), branch);
+  }
+  for (const device of devices) {
+    device.bind?.({
+      branchOf: (name) => branchByName.get(name.toLowerCase()),
+      slot: (row, column) => builder.slot(row, column),
+    });
+  }
+
+  const voltageDiagonals: number[] = [];
+  for (let i = 1; i < builder.size; i++) if (builder.unknowns[i].kind !== 'branch') voltageDiagonals.push(builder.slot(i, i));
+  const floatingDiagonals = [...structure.floatingNodes].map((name) => builder.slot(nodeIndex.get(name)!, nodeIndex.get(name)!));
+
+  const gmin = circuit.options.gmin ?? DEFAULT_GMIN;
+  const system = new CircuitSystem(builder, devices, Int32Array.from(voltageDiagonals), Int32Array.from(floatingDiagonals), gmin > 0 ? Math.min(gmin, FLOATING_NODE_CONDUCTANCE) : FLOATING_NODE_CONDUCTANCE);
+
+  // The algebra's matrix, excluding ground: our slot k is its slot k − 1 when registered in order.
+  const matrix = new SparseMatrix(Math.max(0, builder.size - 1));
+  for (let k = 1; k < builder.slotCount; k++) {
+    const slot = matrix.slot(builder.slotRows[k] - 1, builder.slotColumns[k] - 1);
+    if (slot !== k - 1) throw new Error('matrix slots out of order');
+  }
+  matrix.finalize();
+  const lu = new SparseLU(matrix);
+
+  if (active.length === 0 && circuit.elements.length > 0) {
+    diagnostics.push({ severity: 'info', code: 'unsolved-circuit', message: 'nothing in this circuit is simulated at DC', location: circuitLocation(circuit) });
+  }
+
+  return {
+    circuit,
+    diagnostics,
+    unmodeledNodes,
+    floatingNodes: structure.floatingNodes,
+    unsolvable: structure.hasVoltageLoop,
+    system,
+    matrix,
+    lu,
+    nodeIndex,
+  };
+}

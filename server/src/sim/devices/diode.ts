@@ -1,0 +1,277 @@
+// The SPICE level-1 diode (SPICE3 user's manual, Quarles 1989; ngspice 39 manual, diode
+// chapter): Shockley junction with emission coefficient, series resistance on an internal
+// node, reverse breakdown with the knee placed so that the current at −BV equals IBV,
+// saturation-current temperature law with EG and XTI, gmin across the junction.
+// CJO, VJ, M, TT, FC are read and kept for the transient analysis; they do nothing at DC.
+import type { Diode as DiodeElement, NetlistDiagnostic } from '../../netlist/circuit.js';
+import { DEFAULT_TEMPERATURE_CELSIUS, ZERO_CELSIUS_IN_KELVIN } from '../constants.js';
+import type { ConvergenceContext, CornerConditions, Device, DeviceResultSink, LoadContext, SetupContext } from '../mna.js';
+import { criticalVoltage, junctionCurrent, limitJunctionVoltage, limitedExp, thermalVoltage } from './junction.js';
+import { isGiven, modelParameter } from './parameters.js';
+
+/** A diode is in breakdown when its junction is reversed beyond this fraction of BV… (ours, no source) */
+export const BREAKDOWN_VOLTAGE_FRACTION = 0.9;
+/** …and its reverse current exceeds the saturation current by this factor, i.e. breakdown current dominates leakage (ours, no source). */
+export const BREAKDOWN_CURRENT_OVER_SATURATION = 10;
+/**
+ * Within ± this many emission thermal voltages (N·kT/q) of zero bias the junction is `off`:
+ * the same 3·vte edge at which SPICE3 switches its reverse formula (Quarles 1989).
+ */
+export const OFF_BIAS_THERMAL_VOLTAGES = 3;
+/** ngspice's bisection of the breakdown knee stops after this many iterations (ngspice 39 diotemp.c). */
+const BREAKDOWN_KNEE_ITERATIONS = 25;
+
+export interface DiodeParameters {
+  saturationCurrent: number;
+  emissionCoefficient: number;
+  seriesResistance: number;
+  /** Infinity when the model gives no BV. */
+  breakdownVoltage: number;
+  breakdownCurrent: number;
+  breakdownEmissionCoefficient: number;
+  forwardKneeCurrent: number;
+  activationEnergy: number;
+  saturationCurrentExponent: number;
+  nominalTemperatureCelsius: number | undefined;
+  junctionCapacitance: number;
+  junctionPotential: number;
+  gradingCoefficient: number;
+  transitTime: number;
+  depletionCapacitanceCoefficient: number;
+}
+
+/** The model card's parameters with SPICE defaults (SPICE3 user's manual, ngspice 39 manual). */
+export function diodeParameters(element: DiodeElement): DiodeParameters {
+  const model = element.model;
+  const emissionCoefficient = modelParameter(model, ['n'], 1);
+  return {
+    saturationCurrent: modelParameter(model, ['is', 'js'], 1e-14),
+    emissionCoefficient,
+    seriesResistance: modelParameter(model, ['rs'], 0),
+    breakdownVoltage: isGiven(model, ['bv']) ? Math.abs(modelParameter(model, ['bv'], Infinity)) : Infinity,
+    breakdownCurrent: modelParameter(model, ['ibv'], 1e-3),
+    breakdownEmissionCoefficient: modelParameter(model, ['nbv'], emissionCoefficient),
+    forwardKneeCurrent: modelParameter(model, ['ikf', 'ik'], 0),
+    activationEnergy: Math.max(0.1, modelParameter(model, ['eg'], 1.11)),
+    saturationCurrentExponent: modelParameter(model, ['xti'], 3),
+    nominalTemperatureCelsius: isGiven(model, ['tnom']) ? modelParameter(model, ['tnom'], DEFAULT_TEMPERATURE_CELSIUS) : undefined,
+    junctionCapacitance: modelParameter(model, ['cjo', 'cj0', 'cj'], 0),
+    junctionPotential: modelParameter(model, ['vj', 'pb'], 1),
+    gradingCoefficient: Math.min(0.9, modelParameter(model, ['m', 'mj'], 0.5)),
+    transitTime: modelParameter(model, ['tt'], 0),
+    depletionCapacitanceCoefficient: Math.min(0.95, modelParameter(model, ['fc'], 0.5)),
+  };
+}
+
+export class DiodeDevice implements Device {
+  readonly linear = false;
+  readonly parameters: DiodeParameters;
+  private anode = 0;
+  private cathode = 0;
+  /** The junction's anode side: the internal node when RS > 0, else the anode. */
+  private junctionAnode = 0;
+  private slots = new Int32Array(7);
+
+  // Temperature-adjusted values at the present corner.
+  private temperature = 0;
+  private saturationCurrent = 0;
+  private emissionThermalVoltage = 0;
+  private breakdownThermalVoltage = 0;
+  private criticalVoltage = 0;
+  private knee = Infinity; // junction voltage magnitude at which breakdown current equals Is (ngspice's shifted BV)
+  private seriesConductance = 0;
+  private forwardKneeCurrent = 0;
+  private gmin = 0;
+  private readonly warnings: NetlistDiagnostic[] = [];
+
+  // Iteration state: the last junction voltage loaded, its current and conductance.
+  private stateVoltage = 0;
+  private stateCurrent = 0;
+  private stateConductance = 0;
+  private warm = false;
+
+  constructor(readonly element: DiodeElement) {
+    this.parameters = diodeParameters(element);
+  }
+
+  setup(context: SetupContext): void {
+    this.anode = context.node(this.element.nodes[0]);
+    this.cathode = context.node(this.element.nodes[1]);
+    this.junctionAnode = this.parameters.seriesResistance > 0 ? context.internalNode(this.element.name, 'junction side of RS') : this.anode;
+    const a = this.anode;
+    const k = this.cathode;
+    const j = this.junctionAnode;
+    this.slots = Int32Array.of(
+      context.slot(a, a),
+      context.slot(k, k),
+      context.slot(j, j),
+      context.slot(a, j),
+      context.slot(k, j),
+      context.slot(j, a),
+      context.slot(j, k),
+    );
+  }
+
+  prepare(conditions: CornerConditions): void {
+    const p = this.parameters;
+    const area = this.element.area > 0 ? this.element.area : 1;
+    this.temperature = this.element.temperature !== undefined ? this.element.temperature + ZERO_CELSIUS_IN_KELVIN : conditions.temperature;
+    const nominal = p.nominalTemperatureCelsius !== undefined ? p.nominalTemperatureCelsius + ZERO_CELSIUS_IN_KELVIN : conditions.nominalTemperature;
+    const vt = thermalVoltage(this.temperature);
+    const vte = p.emissionCoefficient * vt;
+    this.emissionThermalVoltage = vte;
+    this.breakdownThermalVoltage = p.breakdownEmissionCoefficient * vt;
+    const ratio = this.temperature / nominal;
+    // Saturation current's temperature law (SPICE3 user's manual): Is(T) = Is·(T/Tnom)^(XTI/N)·exp((T/Tnom − 1)·EG/(N·Vt)).
+    this.saturationCurrent =
+      p.saturationCurrent * area * Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
+    this.criticalVoltage = criticalVoltage(vte, this.saturationCurrent);
+    this.seriesConductance = p.seriesResistance > 0 ? area / p.seriesResistance : 0;
+    this.forwardKneeCurrent = p.forwardKneeCurrent * area;
+    this.gmin = conditions.gmin;
+    this.knee = Number.isFinite(p.breakdownVoltage) ? this.breakdownKnee(p.breakdownVoltage, p.breakdownCurrent * area, vt, conditions.relativeTolerance) : Infinity;
+  }
+
+  /** ngspice's placement of the breakdown knee: the shifted voltage at which the current at −BV equals IBV. */
+  private breakdownKnee(breakdownVoltage: number, breakdownCurrent: number, vt: number, relativeTolerance: number): number {
+    const saturation = this.saturationCurrent;
+    const nbvVt = this.breakdownThermalVoltage;
+    if (breakdownCurrent < (saturation * breakdownVoltage) / vt) return breakdownVoltage;
+    const tolerance = relativeTolerance * breakdownCurrent;
+    let knee = breakdownVoltage - nbvVt * Math.log(1 + breakdownCurrent / saturation);
+    for (let i = 0; i < BREAKDOWN_KNEE_ITERATIONS; i++) {
+      knee = breakdownVoltage - nbvVt * Math.log(breakdownCurrent / saturation + 1 - knee / vt);
+      const current = saturation * (Math.exp((breakdownVoltage - knee) / nbvVt) - 1 + knee / vt);
+      if (Math.abs(current - breakdownCurrent) <= tolerance) return knee;
+    }
+    this.warnings.push({
+      severity: 'info',
+      code: 'unsolved-circuit',
+      message: `${this.element.name}: the breakdown knee could not be matched to BV = ${breakdownVoltage} V and IBV = ${breakdownCurrent} A; the closest fit is used`,
+      location: this.element.location,
+    });
+    return knee;
+  }
+
+  reset(): void {
+    this.stateVoltage = 0;
+    this.stateCurrent = 0;
+    this.stateConductance = 0;
+    this.warm = false;
+  }
+
+  warmStart(solution: Float64Array): void {
+    this.stateVoltage = solution[this.junctionAnode] - solution[this.cathode];
+    this.warm = true;
+  }
+
+  /** Junction current and conductance at junction voltage v, including gmin. */
+  private evaluate(v: number): { current: number; conductance: number } {
+    const vte = this.emissionThermalVoltage;
+    const saturation = this.saturationCurrent;
+    let current: number;
+    let conductance: number;
+    if (v < -3 * vte && v < -this.knee) {
+      const x = -(this.knee + v) / this.breakdownThermalVoltage;
+      const e = limitedExp(x);
+      current = -saturation * e;
+      conductance = (saturation * Math.exp(Math.min(x, 100))) / this.breakdownThermalVoltage;
+    } else {
+      ({ current, conductance } = junctionCurrent(v, saturation, vte));
+      if (v >= -3 * vte && this.forwardKneeCurrent > 0 && current > 1e-18) {
+        // High injection (ngspice's IKF): i / (1 + sqrt(i / IKF)).
+        const ikf = this.forwardKneeCurrent;
+        const root = Math.sqrt(current / ikf);
+        conductance = ((1 + root) * conductance - (current * conductance) / (2 * root * ikf)) / (1 + 2 * root + current / ikf);
+        current = current / (1 + root);
+      }
+    }
+    return { current: current + this.gmin * v, conductance: conductance + this.gmin };
+  }
+
+  load(context: LoadContext): void {
+    const x = context.solution;
+    let v: number;
+    if (context.initializeJunctions && !this.warm) {
+      v = this.element.off ? 0 : this.criticalVoltage;
+    } else {
+      v = x[this.junctionAnode] - x[this.cathode];
+      const breakdownLimitEdge = Math.min(0, -this.knee + 10 * this.breakdownThermalVoltage);
+      if (Number.isFinite(this.knee) && v < breakdownLimitEdge) {
+        // Limit the step of the breakdown exponential as if it were a forward junction.
+        const limited = limitJunctionVoltage(-(v + this.knee), -(this.stateVoltage + this.knee), this.breakdownThermalVoltage, this.criticalVoltage);
+        v = -(limited.value + this.knee);
+        if (limited.limited) context.nonConvergent++;
+      } else {
+        const limited = limitJunctionVoltage(v, this.stateVoltage, this.emissionThermalVoltage, this.criticalVoltage);
+        v = limited.value;
+        if (limited.limited) context.nonConvergent++;
+      }
+    }
+    this.warm = false;
+    const { current, conductance } = this.evaluate(v);
+    this.stateVoltage = v;
+    this.stateCurrent = current;
+    this.stateConductance = conductance;
+
+    const equivalent = current - conductance * v;
+    context.rhs[this.cathode] += equivalent;
+    context.rhs[this.junctionAnode] -= equivalent;
+    const m = context.matrix;
+    const s = this.slots;
+    const gs = this.seriesConductance;
+    if (gs > 0) {
+      m[s[0]] += gs;
+      m[s[2]] += conductance + gs;
+      m[s[3]] -= gs;
+      m[s[5]] -= gs;
+    } else {
+      m[s[2]] += conductance;
+    }
+    m[s[1]] += conductance;
+    m[s[4]] -= conductance;
+    m[s[6]] -= conductance;
+  }
+
+  converged(context: ConvergenceContext): boolean {
+    const x = context.solution;
+    const v = x[this.junctionAnode] - x[this.cathode];
+    const predicted = this.stateCurrent + this.stateConductance * (v - this.stateVoltage);
+    const tolerance = context.relativeTolerance * Math.max(Math.abs(predicted), Math.abs(this.stateCurrent)) + context.currentTolerance;
+    return Math.abs(predicted - this.stateCurrent) <= tolerance;
+  }
+
+  report(solution: Float64Array, sink: DeviceResultSink): void {
+    const junctionVoltage = solution[this.junctionAnode] - solution[this.cathode];
+    const voltage = solution[this.anode] - solution[this.cathode];
+    const { current } = this.evaluate(junctionVoltage);
+    sink.branch(this.element.name, current);
+    sink.terminals(this.element.name, [current, -current]);
+    sink.diode(this.element.name, { voltage, current, power: voltage * current, region: this.region(junctionVoltage, current) });
+  }
+
+  /** forward / off / reverse by the junction voltage against ±3·N·kT/q; breakdown as the constants above say. */
+  private region(junctionVoltage: number, current: number): 'forward' | 'reverse' | 'breakdown' | 'off' {
+    const breakdownVoltage = this.parameters.breakdownVoltage;
+    if (
+      Number.isFinite(breakdownVoltage) &&
+      junctionVoltage <= -BREAKDOWN_VOLTAGE_FRACTION * breakdownVoltage &&
+      -current > BREAKDOWN_CURRENT_OVER_SATURATION * this.saturationCurrent
+    ) {
+      return 'breakdown';
+    }
+    const edge = OFF_BIAS_THERMAL_VOLTAGES * this.emissionThermalVoltage;
+    if (junctionVoltage >= edge) return 'forward';
+    if (junctionVoltage <= -edge) return 'reverse';
+    return 'off';
+  }
+
+  solveDiagnostics(): NetlistDiagnostic[] {
+    return this.warnings.splice(0);
+  }
+
+  /** Temperature-adjusted values at the last prepared corner, for the checks and tests. */
+  get adjusted(): { temperature: number; saturationCurrent: number; breakdownKnee: number; emissionThermalVoltage: number } {
+    return { temperature: this.temperature, saturationCurrent: this.saturationCurrent, breakdownKnee: this.knee, emissionThermalVoltage: this.emissionThermalVoltage };
+  }
+}

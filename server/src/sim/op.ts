@@ -1,0 +1,304 @@
+// The DC operating point: plain Newton, then gmin stepping, then source stepping (the
+// order and step rules of ngspice 39's `.op`), each under an iteration cap, a wall-clock
+// budget and the caller's cancellation token. Never throws: a circuit that cannot be
+// solved comes back as `ok: false` with an `unsolved-circuit` diagnostic naming the cause.
+import type { Circuit, NetlistDiagnostic } from '../netlist/circuit.js';
+import {
+  DEFAULT_BUDGET_MILLISECONDS,
+  DEFAULT_CURRENT_TOLERANCE,
+  DEFAULT_DC_ITERATION_LIMIT,
+  DEFAULT_GMIN,
+  DEFAULT_GMIN_FACTOR,
+  DEFAULT_RELATIVE_TOLERANCE,
+  DEFAULT_STEP_ITERATION_LIMIT,
+  DEFAULT_TEMPERATURE_CELSIUS,
+  DEFAULT_VOLTAGE_TOLERANCE,
+  ZERO_CELSIUS_IN_KELVIN,
+} from './constants.js';
+import { compileCircuit, type CompiledCircuit } from './compile.js';
+import { circuitLocation } from './diagnose.js';
+import type { CornerConditions, DeviceResultSink } from './mna.js';
+import { NewtonState, newtonIterate, type NewtonOutcome, type NewtonSettings } from './newton.js';
+import type { Corner, DiodeOperatingPoint, OperatingPoint, SolveOptions, SolveResult } from './types.js';
+
+/** gmin stepping starts from this shunt conductance, S (ngspice 39 `dynamic_gmin`). */
+const GMIN_STEPPING_START = 1e-2;
+/** Source stepping's first raise of the source factor, and the smallest it may shrink to (ngspice 39 `gillespie_src`). */
+const SOURCE_STEPPING_FIRST_RAISE = 1e-3;
+const SOURCE_STEPPING_SMALLEST_RAISE = 1e-7;
+/** gmin stepping gives up when its step factor has shrunk to this (ngspice 39). */
+const GMIN_STEPPING_SMALLEST_FACTOR = 1.00005;
+/** Safety cap on the number of gmin or source steps, so that no rule can loop (ours). */
+const MAXIMUM_CONTINUATION_STEPS = 1000;
+
+export const NOMINAL_CORNER: Corner = { name: 'nominal' };
+
+function lookup(map: Record<string, number> | undefined, name: string): number | undefined {
+  if (!map) return undefined;
+  const exact = map[name];
+  if (typeof exact === 'number') return exact;
+  const lower = name.toLowerCase();
+  for (const key of Object.keys(map)) if (key.toLowerCase() === lower) return map[key];
+  return undefined;
+}
+
+function positiveOption(options: Record<string, number>, key: string, fallback: number): number {
+  const value = options[key];
+  return typeof value === 'number' && Number.isFinite(value) && value > 0 ? value : fallback;
+}
+
+interface Tolerances {
+  relativeTolerance: number;
+  voltageTolerance: number;
+  currentTolerance: number;
+  gmin: number;
+  dcIterationLimit: number;
+  stepIterationLimit: number;
+}
+
+function tolerancesOf(circuit: Circuit, options: SolveOptions): Tolerances {
+  const o = circuit.options ?? {};
+  const cap = options.iterationLimit !== undefined && options.iterationLimit > 0 ? Math.floor(options.iterationLimit) : undefined;
+  return {
+    relativeTolerance: positiveOption(o, 'reltol', DEFAULT_RELATIVE_TOLERANCE),
+    voltageTolerance: positiveOption(o, 'vntol', DEFAULT_VOLTAGE_TOLERANCE),
+    currentTolerance: positiveOption(o, 'abstol', DEFAULT_CURRENT_TOLERANCE),
+    gmin: typeof o.gmin === 'number' && o.gmin >= 0 ? o.gmin : DEFAULT_GMIN,
+    dcIterationLimit: cap ?? Math.floor(positiveOption(o, 'itl1', DEFAULT_DC_ITERATION_LIMIT)),
+    stepIterationLimit: cap ?? Math.floor(positiveOption(o, 'itl2', DEFAULT_STEP_ITERATION_LIMIT)),
+  };
+}
+
+function conditionsOf(circuit: Circuit, corner: Corner, tolerances: Tolerances): CornerConditions {
+  const celsius = corner.temperature ?? circuit.temperature ?? DEFAULT_TEMPERATURE_CELSIUS;
+  const nominalCelsius = positiveOption(circuit.options ?? {}, 'tnom', Number.NaN);
+  return {
+    temperature: celsius + ZERO_CELSIUS_IN_KELVIN,
+    nominalTemperature: (Number.isFinite(nominalCelsius) ? nominalCelsius : DEFAULT_TEMPERATURE_CELSIUS) + ZERO_CELSIUS_IN_KELVIN,
+    scaleOf: (name) => lookup(corner.scale, name) ?? 1,
+    sourceValue: (name, value) => lookup(corner.sources, name) ?? value,
+    gmin: tolerances.gmin,
+    relativeTolerance: tolerances.relativeTolerance,
+  };
+}
+
+type Method = OperatingPoint['method'];
+
+interface Attempt {
+  outcome: NewtonOutcome;
+  method: Method;
+  iterations: number;
+}
+
+/** Solves one corner of a compiled circuit. */
+export function solveOperatingPoint(compiled: CompiledCircuit, corner: Corner = NOMINAL_CORNER, options: SolveOptions = {}): SolveResult {
+  const started = performance.now();
+  const { circuit, system } = compiled;
+  const diagnostics: NetlistDiagnostic[] = [...compiled.diagnostics];
+  const fail = (message: string, unknown?: number): SolveResult => {
+    diagnostics.push({ severity: 'warning', code: 'unsolved-circuit', message, location: locationOfUnknown(compiled, unknown) });
+    return { ok: false, corner: corner.name, diagnostics };
+  };
+  try {
+    if (compiled.unsolvable) return { ok: false, corner: corner.name, diagnostics };
+    const tolerances = tolerancesOf(circuit, options);
+    const budget = options.budgetMilliseconds !== undefined && options.budgetMilliseconds >= 0 ? options.budgetMilliseconds : DEFAULT_BUDGET_MILLISECONDS;
+    const deadline = started + budget;
+    const conditions = conditionsOf(circuit, corner, tolerances);
+    for (const device of system.devices) {
+      device.reset?.();
+      device.prepare(conditions);
+    }
+    system.invalidateLinear();
+
+    const state = new NewtonState(system.size);
+    const warm = options.initialGuess !== undefined;
+    if (options.initialGuess) {
+      for (const [name, index] of compiled.nodeIndex) {
+        const value = lookup(options.initialGuess, name);
+        if (index > 0 && value !== undefined && Number.isFinite(value)) state.solution[index] = value;
+      }
+      for (const device of system.devices) device.warmStart?.(state.solution);
+    }
+
+    const settings: NewtonSettings = {
+      iterationLimit: tolerances.dcIterationLimit,
+      relativeTolerance: tolerances.relativeTolerance,
+      voltageTolerance: tolerances.voltageTolerance,
+      currentTolerance: tolerances.currentTolerance,
+      gmin: tolerances.gmin,
+      diagonalGmin: 0,
+      sourceFactor: 1,
+      initializeJunctions: !warm,
+      deadline,
+      cancellation: options.cancellation,
+    };
+    const attempt = solveWithContinuation(compiled, state, settings, tolerances);
+    const outcome = attempt.outcome;
+    for (const device of system.devices) diagnostics.push(...(device.solveDiagnostics?.() ?? []));
+
+    switch (outcome.status) {
+      case 'converged':
+        return {
+          ok: true,
+          point: buildPoint(compiled, state.solution, corner.name, attempt.method, attempt.iterations, performance.now() - started),
+          diagnostics,
+        };
+      case 'cancelled':
+        return fail(`the solve at corner ${corner.name} was cancelled before it finished`);
+      case 'budget':
+        return fail(`the solve at corner ${corner.name} was stopped after its budget of ${budget} ms (${attempt.iterations} Newton iterations) without converging`);
+      case 'singular':
+        return fail(
+          `the circuit equations are singular at ${system.describe(outcome.unknown)}: its voltage or current is not determined by the rest of the circuit (look for a node with no DC path to ground or a loop of sources)`,
+          outcome.unknown,
+        );
+      case 'not-finite':
+        return fail(`the solution overflowed at ${system.describe(outcome.unknown)}: the circuit has no finite operating point as written`, outcome.unknown);
+      case 'iteration-limit':
+        return fail(
+          `no DC operating point found after ${attempt.iterations} Newton iterations (plain, gmin stepping and source stepping); the solution kept moving most at ${system.describe(outcome.unknown)}`,
+          outcome.unknown,
+        );
+    }
+  } catch (error) {
+    // The solver must never throw at its caller; this is a bug in pnlint, said as such.
+    return fail(`internal solver error: ${error instanceof Error ? error.message : String(error)}`);
+  }
+}
+
+function locationOfUnknown(compiled: CompiledCircuit, unknown: number | undefined) {
+  const { circuit, system } = compiled;
+  if (unknown !== undefined && system.unknowns[unknown]) {
+    const { kind, name } = system.unknowns[unknown];
+    const element =
+      kind === 'node' ? circuit.elements.find((e) => e.nodes.includes(name)) : circuit.elements.find((e) => e.name === name);
+    return circuitLocation(circuit, element);
+  }
+  return circuitLocation(circuit);
+}
+
+/** Plain Newton; on failure gmin stepping; on failure source stepping. */
+function solveWithContinuation(compiled: CompiledCircuit, state: NewtonState, settings: NewtonSettings, tolerances: Tolerances): Attempt {
+  const { system, matrix, lu } = compiled;
+  let total = 0;
+  const run = (overrides: Partial<NewtonSettings>): NewtonOutcome => {
+    const outcome = newtonIterate(system, matrix, lu, state, { ...settings, ...overrides });
+    total += outcome.iterations;
+    return outcome;
+  };
+  const stop = (o: NewtonOutcome): boolean => o.status === 'cancelled' || o.status === 'budget';
+
+  const initial = Float64Array.from(state.solution);
+  const plain = run({});
+  if (plain.status === 'converged' || stop(plain)) return { outcome: plain, method: 'newton', iterations: total };
+  let lastFailure: NewtonOutcome = plain;
+
+  // gmin stepping (ngspice's dynamic gmin): a shunt on every node, shrunk while Newton keeps converging.
+  state.solution.set(initial);
+  const gmin = gminStepping(run, state, settings, tolerances);
+  if (gmin.status === 'converged' || stop(gmin)) return { outcome: gmin, method: 'gmin-stepping', iterations: total };
+  if (gmin.status !== 'iteration-limit') lastFailure = gmin;
+
+  // Source stepping (ngspice's gillespie_src): ramp every independent source up from zero.
+  state.solution.set(initial);
+  const source = sourceStepping(run, state, settings, tolerances);
+  if (source.status === 'converged' || stop(source)) return { outcome: source, method: 'source-stepping', iterations: total };
+  const reported = lastFailure.status === 'iteration-limit' ? source : lastFailure;
+  return { outcome: { ...reported, iterations: total } as NewtonOutcome, method: 'newton', iterations: total };
+}
+
+type Run = (overrides: Partial<NewtonSettings>) => NewtonOutcome;
+
+function gminStepping(run: Run, state: NewtonState, settings: NewtonSettings, tolerances: Tolerances): NewtonOutcome {
+  const target = Math.max(tolerances.gmin, 0);
+  let factor = DEFAULT_GMIN_FACTOR;
+  let previousGmin = GMIN_STEPPING_START;
+  let diagonalGmin = previousGmin / factor;
+  let saved = Float64Array.from(state.solution);
+  let first = true;
+  const limit = tolerances.stepIterationLimit;
+  for (let step = 0; step < MAXIMUM_CONTINUATION_STEPS; step++) {
+    const outcome = run({ diagonalGmin, iterationLimit: limit, initializeJunctions: first && settings.initializeJunctions });
+    if (outcome.status === 'cancelled' || outcome.status === 'budget') return outcome;
+    if (outcome.status === 'converged') {
+      first = false;
+      if (diagonalGmin <= target) break;
+      saved = Float64Array.from(state.solution);
+      if (outcome.iterations <= limit / 4) factor = Math.min(factor * Math.sqrt(factor), DEFAULT_GMIN_FACTOR);
+      if (outcome.iterations > (3 * limit) / 4) factor = Math.sqrt(factor);
+      previousGmin = diagonalGmin;
+      if (diagonalGmin < factor * target) {
+        factor = diagonalGmin / target;
+        diagonalGmin = target;
+      } else {
+        diagonalGmin /= factor;
+      }
+    } else {
+      if (factor < GMIN_STEPPING_SMALLEST_FACTOR) return outcome;
+      factor = Math.sqrt(Math.sqrt(factor));
+      diagonalGmin = previousGmin / factor;
+      state.solution.set(saved);
+    }
+  }
+  // The last step without any shunt.
+  return run({ diagonalGmin: 0, initializeJunctions: false });
+}
+
+function sourceStepping(run: Run, state: NewtonState, settings: NewtonSettings, tolerances: Tolerances): NewtonOutcome {
+  const limit = tolerances.stepIterationLimit;
+  state.solution.fill(0);
+  let outcome = run({ sourceFactor: 0, iterationLimit: limit, initializeJunctions: settings.initializeJunctions });
+  if (outcome.status !== 'converged') return outcome;
+  let converged = 0;
+  let raise = SOURCE_STEPPING_FIRST_RAISE;
+  let saved = Float64Array.from(state.solution);
+  let factor = converged + raise;
+  for (let step = 0; step < MAXIMUM_CONTINUATION_STEPS && raise >= SOURCE_STEPPING_SMALLEST_RAISE && converged < 1; step++) {
+    outcome = run({ sourceFactor: factor, iterationLimit: limit, initializeJunctions: false });
+    if (outcome.status === 'cancelled' || outcome.status === 'budget') return outcome;
+    if (outcome.status === 'converged') {
+      converged = factor;
+      saved = Float64Array.from(state.solution);
+      if (outcome.iterations <= limit / 4) raise *= 1.5;
+      if (outcome.iterations > (3 * limit) / 4) raise *= 0.5;
+      factor = converged + raise;
+    } else {
+      if (factor - converged < 1e-8) break;
+      raise = Math.min(raise / 10, 0.01);
+      factor = converged;
+      state.solution.set(saved);
+    }
+    if (factor > 1) factor = 1;
+  }
+  if (converged < 1) return outcome.status === 'converged' ? { status: 'iteration-limit', iterations: 0, unknown: 0 } : outcome;
+  return outcome;
+}
+
+function buildPoint(compiled: CompiledCircuit, solution: Float64Array, corner: string, method: Method, iterations: number, milliseconds: number): OperatingPoint {
+  const nodes: Record<string, number> = { '0': 0 };
+  for (const [name, index] of compiled.nodeIndex) nodes[name] = index === 0 ? 0 : solution[index];
+  const branches: Record<string, number> = {};
+  const terminals: Record<string, number[]> = {};
+  const diodes: Record<string, DiodeOperatingPoint> = {};
+  const sink: DeviceResultSink = {
+    branch: (name, current) => (branches[name] = current),
+    terminals: (name, currents) => (terminals[name] = currents),
+    diode: (name, point) => (diodes[name] = point),
+  };
+  for (const device of compiled.system.devices) device.report(solution, sink);
+  // Capacitors are open at DC: no current, but listed so that every element has its branch.
+  for (const element of compiled.circuit.elements) {
+    if (element.type === 'C') {
+      branches[element.name] = 0;
+      terminals[element.name] = [0, 0];
+    }
+  }
+  return { corner, nodes, branches, terminals, diodes, method, iterations, milliseconds };
+}
+
+/** Compiles once and solves each corner in turn (each from a cold start, as a reference SPICE engine would). */
+export function solveCorners(circuit: Circuit, corners: Corner[], options: SolveOptions = {}): SolveResult[] {
+  const compiled = compileCircuit(circuit);
+  return corners.map((corner) => solveOperatingPoint(compiled, corner, options));
+}
