@@ -6,7 +6,8 @@ import { CompletionItemKind, type CompletionItem, type CompletionParams } from '
 import { DIODE_KINDS, RATING_SYMBOLS } from '../checks/vocabulary.js';
 import { RULES } from '../rule-ids.js';
 import type { FeatureContext } from './context.js';
-import { MODEL_TYPES, MODEL_TYPES_BY_LETTER, parametersOfModelType } from './model-parameters.js';
+import { MODEL_TYPES_BY_LETTER } from '../netlist/models.js';
+import { MODEL_TYPES, parametersOfModelType } from './model-parameters.js';
 import { NODE_COUNT, type SyntaxIndex } from './syntax.js';
 
 /** Dot commands a SPICE netlist may use (SPICE3 user's manual; `.lib`/`.endl` and `.if` as ngspice reads them). */

@@ -130,16 +130,3 @@ export function parametersOfModelType(type: string): [string, ParameterDescripti
 
 /** Every model type with a table here, and its device. */
 export const MODEL_TYPES: readonly [string, string][] = Object.entries(BY_TYPE).map(([type, entry]) => [type, entry.device]);
-
-/** The model types an element letter takes, for completion. */
-export const MODEL_TYPES_BY_LETTER: Readonly<Record<string, readonly string[]>> = {
-  D: ['D'],
-  Q: ['NPN', 'PNP'],
-  M: ['NMOS', 'PMOS'],
-  J: ['NJF', 'PJF'],
-  S: ['SW'],
-  W: ['CSW'],
-  R: ['R', 'RES'],
-  C: ['C'],
-  L: ['L'],
-};
