@@ -463,6 +463,35 @@ describe('SparseLU on singular matrices', () => {
     expect(Array.from(solveSparse(lu, [4, 3]))).toEqual([1, 2]);
   });
 
+  it('reports a matrix that turns singular between refactorisations, then recovers', () => {
+    // [2 1; 1 1] factors; [2 1; 4 2] has its second row twice the first (det 0, worked by hand).
+    const good: Entry[] = [[0, 0, 2], [0, 1, 1], [1, 0, 1], [1, 1, 1]];
+    const { matrix, slots } = buildMatrix(2, good);
+    const lu = new SparseLU(matrix);
+    expect(lu.factor().ok).toBe(true);
+    setValues(matrix, slots, [[0, 0, 2], [0, 1, 1], [1, 0, 4], [1, 1, 2]]);
+    const result = lu.factor();
+    expect(result.ok).toBe(false);
+    if (!result.ok) expect([0, 1]).toContain(result.singularColumn);
+    setValues(matrix, slots, good);
+    expect(lu.factor()).toEqual({ ok: true });
+    expect(Array.from(solveSparse(lu, [4, 3]))).toEqual([1, 2]);
+  });
+
+  it('reports a NaN or an infinity that appears during refactorisation, at its column', () => {
+    const random = randomSource(5);
+    const entries = dominantSystem(20, 2, random);
+    const { matrix, slots } = buildMatrix(20, entries);
+    const lu = new SparseLU(matrix);
+    expect(lu.factor().ok).toBe(true);
+    for (const bad of [Number.NaN, Infinity, -Infinity]) {
+      setValues(matrix, slots, entries);
+      const victim = entries.findIndex(([row, column]) => row !== column);
+      matrix.values[slots[victim]] = bad;
+      expect(lu.factor()).toEqual({ ok: false, singularColumn: entries[victim][1] });
+    }
+  });
+
   it('does not call a well-posed matrix of tiny conductances singular', () => {
     // Two nodes joined by 1 pS, each with 1 pS to ground: [2 −1; −1 2]·1e-12; b = [1e-12, 0] gives v = [2/3, 1/3].
     const g = 1e-12;

@@ -1,4 +1,4 @@
 // The algebra layer: a sparse real matrix and its LU factorisation.
 export { SparseMatrix } from './matrix.js';
 export { SparseLU } from './lu.js';
-export type { FactorResult } from './lu.js';
+export type { FactorResult, FactorStatistics } from './lu.js';

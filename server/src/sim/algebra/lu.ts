@@ -10,6 +10,8 @@ import type { SparseMatrix } from './matrix.js';
 import { eliminateWithMarkowitz, type ColumnStructure, type EliminationFactors } from './markowitz.js';
 import { NUMERICAL_ZERO_RELATIVE, PIVOT_ACCEPTANCE_THRESHOLD } from './tolerances.js';
 
+const NO_COLUMN = -1;
+
 export type FactorResult = { ok: true } | { ok: false; singularColumn: number };
 
 /** Counters for logs, benchmarks and tests. */
@@ -72,7 +74,8 @@ export class SparseLU {
     if (!matrix.isFinalized) matrix.finalize();
     this.structure ??= compressByColumn(matrix);
     this.factored = false;
-    this.measureColumns();
+    const nonFinite = this.measureColumns();
+    if (nonFinite !== NO_COLUMN) return { ok: false, singularColumn: nonFinite };
     if (this.hasOrdering && this.refactor()) {
       this.counters.refactorizations++;
       this.factored = true;
@@ -125,16 +128,25 @@ export class SparseLU {
     for (let k = 0; k < n; k++) solution[columnAtStep[k]] = work[k];
   }
 
-  /** The largest original magnitude in each column, the yardstick for numerical zeros. */
-  private measureColumns(): void {
+  /**
+   * The largest original magnitude in each column, the yardstick for numerical zeros.
+   * Returns the first column holding a NaN or an infinity, which no pivot order can factor, or NO_COLUMN.
+   */
+  private measureColumns(): number {
     const scale = this.columnScale;
     scale.fill(0);
     const columns = this.matrix.columnOfSlot;
     const values = this.matrix.values;
+    let nonFinite = NO_COLUMN;
     for (let s = 0; s < values.length; s++) {
       const magnitude = Math.abs(values[s]);
-      if (magnitude > scale[columns[s]]) scale[columns[s]] = magnitude;
+      if (!(magnitude < Infinity)) {
+        if (nonFinite === NO_COLUMN) nonFinite = columns[s];
+      } else if (magnitude > scale[columns[s]]) {
+        scale[columns[s]] = magnitude;
+      }
     }
+    return nonFinite;
   }
 
   /**

@@ -34,192 +34,135 @@ export interface EliminationFactors {
 
 export type EliminationResult = { ok: true; factors: EliminationFactors } | { ok: false; singularColumn: number };
 
-/** Room added to a line's storage when it is laid out, so that a little fill needs no move. */
-const LINE_SLACK = 2;
 const NONE = -1;
 
 /**
- * The active submatrix: columns hold rows and values; rows hold only their
- * column pattern. Each kind of line lives in one pooled typed array; a line
- * that outgrows its room moves to the end of its pool, and a full pool is
- * compacted into a larger one, so memory stays linear in the nonzeros.
+ * The active submatrix as a pool of elements, each linked into its row and its
+ * column (doubly, so that removal is O(1)). Locating (i, j) walks the shorter of
+ * row i and column j, and a diagonal element is found directly, so a node with
+ * thousands of neighbours costs nothing extra each time a neighbour is
+ * eliminated. Elements are never moved; memory is linear in nonzeros plus fill.
  */
 class ActiveSubmatrix {
   readonly size: number;
-  readonly columnStart: Int32Array;
-  readonly columnLength: Int32Array;
-  readonly columnCapacity: Int32Array;
-  columnRows: Int32Array;
-  columnValues: Float64Array;
-  private columnPoolEnd = 0;
+  elementRow: Int32Array;
+  elementColumn: Int32Array;
+  elementValue: Float64Array;
+  private nextInRow: Int32Array;
+  private previousInRow: Int32Array;
+  private nextInColumn: Int32Array;
+  private previousInColumn: Int32Array;
+  private elementCount = 0;
 
-  readonly rowStart: Int32Array;
+  readonly rowFirst: Int32Array;
+  readonly columnFirst: Int32Array;
   readonly rowLength: Int32Array;
-  readonly rowCapacity: Int32Array;
-  rowColumns: Int32Array;
-  private rowPoolEnd = 0;
-
+  readonly columnLength: Int32Array;
+  /** Element (i, i) while row i and column i are both active, else NONE. */
+  private readonly diagonal: Int32Array;
   readonly columnActive: Uint8Array;
   readonly rowActive: Uint8Array;
 
   constructor(structure: ColumnStructure, values: Float64Array) {
     const n = structure.size;
     this.size = n;
-    const entries = structure.row.length;
-    this.columnStart = new Int32Array(n);
-    this.columnLength = new Int32Array(n);
-    this.columnCapacity = new Int32Array(n);
-    this.rowStart = new Int32Array(n);
+    const capacity = Math.ceil(1.5 * structure.row.length) + 16;
+    this.elementRow = new Int32Array(capacity);
+    this.elementColumn = new Int32Array(capacity);
+    this.elementValue = new Float64Array(capacity);
+    this.nextInRow = new Int32Array(capacity);
+    this.previousInRow = new Int32Array(capacity);
+    this.nextInColumn = new Int32Array(capacity);
+    this.previousInColumn = new Int32Array(capacity);
+    this.rowFirst = new Int32Array(n).fill(NONE);
+    this.columnFirst = new Int32Array(n).fill(NONE);
     this.rowLength = new Int32Array(n);
-    this.rowCapacity = new Int32Array(n);
+    this.columnLength = new Int32Array(n);
+    this.diagonal = new Int32Array(n).fill(NONE);
     this.columnActive = new Uint8Array(n).fill(1);
     this.rowActive = new Uint8Array(n).fill(1);
-
-    const poolLength = 2 * (entries + LINE_SLACK * n) + 16;
-    this.columnRows = new Int32Array(poolLength);
-    this.columnValues = new Float64Array(poolLength);
-    this.rowColumns = new Int32Array(poolLength);
-
-    const rowCount = new Int32Array(n);
-    for (let e = 0; e < entries; e++) rowCount[structure.row[e]]++;
-    let end = 0;
-    for (let i = 0; i < n; i++) {
-      this.rowStart[i] = end;
-      this.rowCapacity[i] = rowCount[i] + LINE_SLACK;
-      end += this.rowCapacity[i];
-    }
-    this.rowPoolEnd = end;
-    end = 0;
     for (let j = 0; j < n; j++) {
-      const first = structure.columnStart[j];
-      const last = structure.columnStart[j + 1];
-      this.columnStart[j] = end;
-      this.columnCapacity[j] = last - first + LINE_SLACK;
-      for (let e = first; e < last; e++) {
-        const i = structure.row[e];
-        this.columnRows[end + this.columnLength[j]] = i;
-        this.columnValues[end + this.columnLength[j]] = values[structure.slot[e]];
-        this.columnLength[j]++;
-        this.rowColumns[this.rowStart[i] + this.rowLength[i]] = j;
-        this.rowLength[i]++;
+      for (let e = structure.columnStart[j], end = structure.columnStart[j + 1]; e < end; e++) {
+        this.add(structure.row[e], j, values[structure.slot[e]]);
       }
-      end += this.columnCapacity[j];
     }
-    this.columnPoolEnd = end;
   }
 
-  appendToColumn(column: number, row: number, value: number): void {
-    if (this.columnLength[column] === this.columnCapacity[column]) this.moveColumnToEnd(column);
-    const at = this.columnStart[column] + this.columnLength[column];
-    this.columnRows[at] = row;
-    this.columnValues[at] = value;
-    this.columnLength[column]++;
+  nextElementInRow(element: number): number {
+    return this.nextInRow[element];
   }
 
-  appendToRow(row: number, column: number): void {
-    if (this.rowLength[row] === this.rowCapacity[row]) this.moveRowToEnd(row);
-    this.rowColumns[this.rowStart[row] + this.rowLength[row]] = column;
+  nextElementInColumn(element: number): number {
+    return this.nextInColumn[element];
+  }
+
+  /** Adds element (row, column), which must not exist yet. */
+  add(row: number, column: number, value: number): void {
+    if (this.elementCount === this.elementRow.length) this.grow();
+    const e = this.elementCount++;
+    this.elementRow[e] = row;
+    this.elementColumn[e] = column;
+    this.elementValue[e] = value;
+    this.previousInRow[e] = NONE;
+    this.nextInRow[e] = this.rowFirst[row];
+    if (this.rowFirst[row] !== NONE) this.previousInRow[this.rowFirst[row]] = e;
+    this.rowFirst[row] = e;
     this.rowLength[row]++;
+    this.previousInColumn[e] = NONE;
+    this.nextInColumn[e] = this.columnFirst[column];
+    if (this.columnFirst[column] !== NONE) this.previousInColumn[this.columnFirst[column]] = e;
+    this.columnFirst[column] = e;
+    this.columnLength[column]++;
+    if (row === column) this.diagonal[row] = e;
   }
 
-  /** Removes (row, column) from the column and returns its value. */
-  takeFromColumn(column: number, row: number): number {
-    const start = this.columnStart[column];
-    const last = start + this.columnLength[column] - 1;
-    for (let at = start; at <= last; at++) {
-      if (this.columnRows[at] !== row) continue;
-      const value = this.columnValues[at];
-      this.columnRows[at] = this.columnRows[last];
-      this.columnValues[at] = this.columnValues[last];
-      this.columnLength[column]--;
-      return value;
+  removeFromRow(element: number): void {
+    const before = this.previousInRow[element];
+    const after = this.nextInRow[element];
+    const row = this.elementRow[element];
+    if (before === NONE) this.rowFirst[row] = after;
+    else this.nextInRow[before] = after;
+    if (after !== NONE) this.previousInRow[after] = before;
+    this.rowLength[row]--;
+  }
+
+  removeFromColumn(element: number): void {
+    const before = this.previousInColumn[element];
+    const after = this.nextInColumn[element];
+    const column = this.elementColumn[element];
+    if (before === NONE) this.columnFirst[column] = after;
+    else this.nextInColumn[before] = after;
+    if (after !== NONE) this.previousInColumn[after] = before;
+    this.columnLength[column]--;
+  }
+
+  /** The element at (row, column) of the active submatrix, or NONE. */
+  find(row: number, column: number): number {
+    if (row === column) return this.diagonal[row];
+    if (this.rowLength[row] <= this.columnLength[column]) {
+      for (let e = this.rowFirst[row]; e !== NONE; e = this.nextInRow[e]) if (this.elementColumn[e] === column) return e;
+    } else {
+      for (let e = this.columnFirst[column]; e !== NONE; e = this.nextInColumn[e]) if (this.elementRow[e] === row) return e;
     }
-    return 0;
+    return NONE;
   }
 
-  removeFromRow(row: number, column: number): void {
-    const start = this.rowStart[row];
-    const last = start + this.rowLength[row] - 1;
-    for (let at = start; at <= last; at++) {
-      if (this.rowColumns[at] !== column) continue;
-      this.rowColumns[at] = this.rowColumns[last];
-      this.rowLength[row]--;
-      return;
-    }
-  }
-
-  valueAt(column: number, row: number): number {
-    const start = this.columnStart[column];
-    const end = start + this.columnLength[column];
-    for (let at = start; at < end; at++) if (this.columnRows[at] === row) return this.columnValues[at];
-    return 0;
-  }
-
-  private moveColumnToEnd(column: number): void {
-    const length = this.columnLength[column];
-    const capacity = 2 * length + LINE_SLACK;
-    if (this.columnPoolEnd + capacity > this.columnRows.length) this.compactColumns(capacity);
-    const from = this.columnStart[column];
-    const to = this.columnPoolEnd;
-    this.columnRows.copyWithin(to, from, from + length);
-    this.columnValues.copyWithin(to, from, from + length);
-    this.columnStart[column] = to;
-    this.columnCapacity[column] = capacity;
-    this.columnPoolEnd = to + capacity;
-  }
-
-  private moveRowToEnd(row: number): void {
-    const length = this.rowLength[row];
-    const capacity = 2 * length + LINE_SLACK;
-    if (this.rowPoolEnd + capacity > this.rowColumns.length) this.compactRows(capacity);
-    const from = this.rowStart[row];
-    const to = this.rowPoolEnd;
-    this.rowColumns.copyWithin(to, from, from + length);
-    this.rowStart[row] = to;
-    this.rowCapacity[row] = capacity;
-    this.rowPoolEnd = to + capacity;
-  }
-
-  /** Lays the active columns out afresh in a pool with room for `extra` more. */
-  private compactColumns(extra: number): void {
-    let live = 0;
-    for (let j = 0; j < this.size; j++) if (this.columnActive[j]) live += this.columnLength[j] + LINE_SLACK;
-    const length = Math.max(this.columnRows.length, 2 * (live + extra) + 16);
-    const rows = new Int32Array(length);
-    const values = new Float64Array(length);
-    let end = 0;
-    for (let j = 0; j < this.size; j++) {
-      if (!this.columnActive[j]) continue;
-      const from = this.columnStart[j];
-      const count = this.columnLength[j];
-      rows.set(this.columnRows.subarray(from, from + count), end);
-      values.set(this.columnValues.subarray(from, from + count), end);
-      this.columnStart[j] = end;
-      this.columnCapacity[j] = count + LINE_SLACK;
-      end += count + LINE_SLACK;
-    }
-    this.columnRows = rows;
-    this.columnValues = values;
-    this.columnPoolEnd = end;
-  }
-
-  private compactRows(extra: number): void {
-    let live = 0;
-    for (let i = 0; i < this.size; i++) if (this.rowActive[i]) live += this.rowLength[i] + LINE_SLACK;
-    const length = Math.max(this.rowColumns.length, 2 * (live + extra) + 16);
-    const columns = new Int32Array(length);
-    let end = 0;
-    for (let i = 0; i < this.size; i++) {
-      if (!this.rowActive[i]) continue;
-      const from = this.rowStart[i];
-      const count = this.rowLength[i];
-      columns.set(this.rowColumns.subarray(from, from + count), end);
-      this.rowStart[i] = end;
-      this.rowCapacity[i] = count + LINE_SLACK;
-      end += count + LINE_SLACK;
-    }
-    this.rowColumns = columns;
-    this.rowPoolEnd = end;
+  private grow(): void {
+    const capacity = 2 * this.elementRow.length;
+    const widenInt = (old: Int32Array): Int32Array => {
+      const grown = new Int32Array(capacity);
+      grown.set(old);
+      return grown;
+    };
+    this.elementRow = widenInt(this.elementRow);
+    this.elementColumn = widenInt(this.elementColumn);
+    this.nextInRow = widenInt(this.nextInRow);
+    this.previousInRow = widenInt(this.previousInRow);
+    this.nextInColumn = widenInt(this.nextInColumn);
+    this.previousInColumn = widenInt(this.previousInColumn);
+    const values = new Float64Array(capacity);
+    values.set(this.elementValue);
+    this.elementValue = values;
   }
 }
 
@@ -326,10 +269,8 @@ export function eliminateWithMarkowitz(
   const maximumOf = (column: number): number => {
     if (columnMaximumStale[column]) {
       let largest = 0;
-      const start = active.columnStart[column];
-      const end = start + active.columnLength[column];
-      for (let at = start; at < end; at++) {
-        const magnitude = Math.abs(active.columnValues[at]);
+      for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
+        const magnitude = Math.abs(active.elementValue[e]);
         // NaN never compares greater, so a column of NaNs reads as empty: reported, not pivoted on.
         if (magnitude > largest) largest = magnitude;
       }
@@ -349,69 +290,60 @@ export function eliminateWithMarkowitz(
   const lowerValue = new GrowingFloat64(entries);
   const upperColumn = new GrowingInt32(entries);
   const upperValue = new GrowingFloat64(entries);
-  // Offset of each row within the column being updated, or NONE.
-  const offsetInColumn = new Int32Array(n).fill(NONE);
 
-  // The search's choice, set by choosePivot().
-  let chosenRow = NONE;
-  let chosenColumn = NONE;
-  let chosenValue = 0;
+  // The search's best candidate so far.
+  let bestCost = Infinity;
+  let bestRatio = 0;
+  let chosenElement = NONE;
+  /** Weighs one candidate pivot; returns whether it passes the threshold test. */
+  const consider = (element: number, column: number, largest: number, cost: number): boolean => {
+    const magnitude = Math.abs(active.elementValue[element]);
+    if (!(magnitude > NUMERICAL_ZERO_RELATIVE * columnScale[column]) || magnitude < PIVOT_SELECTION_THRESHOLD * largest) return false;
+    const ratio = magnitude / largest;
+    if (cost < bestCost || (cost === bestCost && ratio > bestRatio)) {
+      bestCost = cost;
+      bestRatio = ratio;
+      chosenElement = element;
+    }
+    return true;
+  };
 
-  /** Picks the next pivot; returns NONE, or the column found singular. */
+  /** Picks the next pivot into chosenElement; returns NONE, or the column found singular. */
   const choosePivot = (): number => {
     const emptyColumn = columnBuckets.head[0];
     if (emptyColumn !== NONE) return emptyColumn;
-    let bestCost = Infinity;
-    let bestRatio = 0;
+    bestCost = Infinity;
+    bestRatio = 0;
+    chosenElement = NONE;
     let examined = 0;
-    chosenRow = NONE;
-    const consider = (row: number, column: number, value: number, largest: number, cost: number): boolean => {
-      const magnitude = Math.abs(value);
-      if (!(magnitude > NUMERICAL_ZERO_RELATIVE * columnScale[column]) || magnitude < PIVOT_SELECTION_THRESHOLD * largest) return false;
-      const ratio = magnitude / largest;
-      if (cost < bestCost || (cost === bestCost && ratio > bestRatio)) {
-        bestCost = cost;
-        bestRatio = ratio;
-        chosenRow = row;
-        chosenColumn = column;
-        chosenValue = value;
-      }
-      return true;
-    };
     for (let count = 1; count <= n; count++) {
-      // Columns with `count` entries: every candidate costs (rowCount − 1)·(count − 1).
+      // Columns with `count` entries: each candidate costs (rowCount − 1)·(count − 1).
       for (let column = columnBuckets.head[count]; column !== NONE; column = columnBuckets.following(column)) {
         const largest = maximumOf(column);
         if (!(largest > NUMERICAL_ZERO_RELATIVE * columnScale[column])) return column;
-        const start = active.columnStart[column];
-        const end = start + count;
         let usable = false;
-        for (let at = start; at < end; at++) {
-          const row = active.columnRows[at];
-          if (consider(row, column, active.columnValues[at], largest, (active.rowLength[row] - 1) * (count - 1))) usable = true;
+        for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
+          if (consider(e, column, largest, (active.rowLength[active.elementRow[e]] - 1) * (count - 1))) usable = true;
         }
         if (usable) examined++;
-        if (bestCost <= (count - 1) * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && chosenRow !== NONE)) return NONE;
+        if (bestCost <= (count - 1) * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && chosenElement !== NONE)) return NONE;
       }
       // Any candidate not yet seen lies in a row of at least `count` and a column of more than `count` entries.
       if (bestCost <= count * (count - 1)) return NONE;
       for (let row = rowBuckets.head[count]; row !== NONE; row = rowBuckets.following(row)) {
-        const start = active.rowStart[row];
-        const end = start + count;
         let usable = false;
-        for (let at = start; at < end; at++) {
-          const column = active.rowColumns[at];
+        for (let e = active.rowFirst[row]; e !== NONE; e = active.nextElementInRow(e)) {
+          const column = active.elementColumn[e];
           const largest = maximumOf(column);
           if (!(largest > NUMERICAL_ZERO_RELATIVE * columnScale[column])) return column;
-          const cost = (count - 1) * (active.columnLength[column] - 1);
-          if (consider(row, column, active.valueAt(column, row), largest, cost)) usable = true;
+          if (consider(e, column, largest, (count - 1) * (active.columnLength[column] - 1))) usable = true;
         }
         if (usable) examined++;
-        if (bestCost <= count * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && chosenRow !== NONE)) return NONE;
+        if (bestCost <= count * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && chosenElement !== NONE)) return NONE;
       }
       if (bestCost <= count * count) return NONE;
     }
-    if (chosenRow !== NONE) return NONE;
+    if (chosenElement !== NONE) return NONE;
     // Unreachable for a well-formed active submatrix; name any active column rather than loop.
     for (let column = 0; column < n; column++) if (active.columnActive[column]) return column;
     return 0;
@@ -420,49 +352,39 @@ export function eliminateWithMarkowitz(
   for (let step = 0; step < n; step++) {
     const singular = choosePivot();
     if (singular !== NONE) return { ok: false, singularColumn: singular };
-    const p = chosenRow;
-    const q = chosenColumn;
-    const pivot = chosenValue;
+    const p = active.elementRow[chosenElement];
+    const q = active.elementColumn[chosenElement];
+    const pivot = active.elementValue[chosenElement];
     pivotRow[step] = p;
     pivotColumn[step] = q;
     pivotValue[step] = pivot;
 
-    // The pivot column below the pivot becomes column `step` of L.
+    // The pivot column below the pivot becomes column `step` of L; its elements leave their rows.
     lowerStart[step] = lowerRow.length;
     columnBuckets.unlink(q);
     active.columnActive[q] = 0;
-    {
-      const start = active.columnStart[q];
-      const end = start + active.columnLength[q];
-      for (let at = start; at < end; at++) {
-        const row = active.columnRows[at];
-        if (row === p) continue;
-        lowerRow.push(row);
-        lowerValue.push(active.columnValues[at] / pivot);
-      }
+    for (let e = active.columnFirst[q]; e !== NONE; e = active.nextElementInColumn(e)) {
+      const row = active.elementRow[e];
+      if (row === p) continue;
+      lowerRow.push(row);
+      lowerValue.push(active.elementValue[e] / pivot);
+      rowBuckets.unlink(row);
+      active.removeFromRow(e);
     }
     const lowerFirst = lowerStart[step];
     const lowerEnd = lowerRow.length;
-    for (let l = lowerFirst; l < lowerEnd; l++) {
-      const row = lowerRow.data[l];
-      rowBuckets.unlink(row);
-      active.removeFromRow(row, q);
-    }
 
-    // The pivot row right of the pivot becomes row `step` of U.
+    // The pivot row right of the pivot becomes row `step` of U; its elements leave their columns.
     upperStart[step] = upperColumn.length;
     rowBuckets.unlink(p);
     active.rowActive[p] = 0;
-    {
-      const start = active.rowStart[p];
-      const end = start + active.rowLength[p];
-      for (let at = start; at < end; at++) {
-        const column = active.rowColumns[at];
-        if (column === q) continue;
-        columnBuckets.unlink(column);
-        upperColumn.push(column);
-        upperValue.push(active.takeFromColumn(column, p));
-      }
+    for (let e = active.rowFirst[p]; e !== NONE; e = active.nextElementInRow(e)) {
+      const column = active.elementColumn[e];
+      if (column === q) continue;
+      upperColumn.push(column);
+      upperValue.push(active.elementValue[e]);
+      columnBuckets.unlink(column);
+      active.removeFromColumn(e);
     }
     const upperFirst = upperStart[step];
     const upperEnd = upperColumn.length;
@@ -471,23 +393,13 @@ export function eliminateWithMarkowitz(
     for (let u = upperFirst; u < upperEnd; u++) {
       const column = upperColumn.data[u];
       const upper = upperValue.data[u];
-      let start = active.columnStart[column];
-      const length = active.columnLength[column];
-      for (let offset = 0; offset < length; offset++) offsetInColumn[active.columnRows[start + offset]] = offset;
       for (let l = lowerFirst; l < lowerEnd; l++) {
         const row = lowerRow.data[l];
         const update = lowerValue.data[l] * upper;
-        const offset = offsetInColumn[row];
-        if (offset !== NONE) {
-          active.columnValues[active.columnStart[column] + offset] -= update;
-        } else {
-          active.appendToColumn(column, row, -update);
-          active.appendToRow(row, column);
-        }
+        const element = active.find(row, column);
+        if (element !== NONE) active.elementValue[element] -= update;
+        else active.add(row, column, -update);
       }
-      start = active.columnStart[column];
-      const end = start + active.columnLength[column];
-      for (let at = start; at < end; at++) offsetInColumn[active.columnRows[at]] = NONE;
       columnMaximumStale[column] = 1;
       columnBuckets.link(column, active.columnLength[column]);
     }
