@@ -1,8 +1,11 @@
 // The one pipeline that the CLI, the language server and the tests all run:
-// text → syntax tree → elaborated circuit → operating points → findings.
+// text → syntax tree → elaborated circuit → operating points → findings → verified fixes.
 // Pure: every file is reached through the injected FileReader.
 import { parse, type ParseResult } from '@pnlint/grammar';
-import type { Circuit, FileReader } from './netlist/circuit.js';
+import type { Circuit, FileReader, NetlistDiagnostic } from './netlist/circuit.js';
+import { elaborate } from './netlist/index.js';
+import { checkCircuit, type CheckResult } from './checks/index.js';
+import { readWorkspaceConfig, type WorkspaceConfig } from './config.js';
 import type { Finding } from './findings.js';
 import type { CancellationToken } from './sim/types.js';
 import { DEFAULT_SETTINGS, type Settings } from './settings.js';
@@ -15,6 +18,11 @@ export interface AnalysisInput {
   /** The text of the `pnlint.json` that governs this file, if any, and its uri. */
   config?: { uri: string; text: string };
   cancellation?: CancellationToken;
+  /** Untrusted workspace: no file outside `workspaceRoot` is read. */
+  restricted?: boolean;
+  workspaceRoot?: string;
+  /** Skip building and verifying fixes (they cost re-simulations). Default: build them. */
+  withoutFixes?: boolean;
 }
 
 export interface Analysis {
@@ -22,35 +30,84 @@ export interface Analysis {
   /** The top-level file's syntax tree. */
   syntax: ParseResult;
   circuit: Circuit | undefined;
+  /** The checks' full result: per-diode reports, corners and solves (undefined if elaboration failed outright). */
+  check: CheckResult | undefined;
+  config: WorkspaceConfig | undefined;
   /** Everything the user should see, for every file touched (each finding names its uri). */
   findings: Finding[];
-  /** Every file the analysis read (for include-aware re-checking). */
+  /** Every file the analysis read (for include-aware re-checking), the pnlint.json included. */
   filesRead: string[];
   /** False when cancelled before it finished; its findings are then incomplete. */
   complete: boolean;
   milliseconds: number;
 }
 
+/** Diagnostics the checks pass through themselves (they decide what each means for the diodes). */
+const CODES_REPORTED_BY_CHECKS: ReadonlySet<string> = new Set(['unknown-model', 'unmodeled-element', 'floating-node', 'unsolved-circuit']);
+
 export function analyze(input: AnalysisInput): Analysis {
   const started = performance.now();
   const settings = input.settings ?? DEFAULT_SETTINGS;
-  void settings;
+  const findings: Finding[] = [];
+
+  let config: WorkspaceConfig | undefined;
+  if (input.config) {
+    const read = readWorkspaceConfig(input.config.uri, input.config.text);
+    config = read.config;
+    findings.push(...read.findings);
+  }
+
+  const elaborateOptions: { restricted?: boolean; workspaceRoot?: string } = {};
+  if (input.restricted) elaborateOptions.restricted = true;
+  if (input.workspaceRoot !== undefined) elaborateOptions.workspaceRoot = input.workspaceRoot;
+  const circuit = elaborate(input.uri, input.text, input.files, elaborateOptions);
   const syntax = parse(input.text);
-  const findings: Finding[] = syntax.diagnostics.map((d) => ({
-    rule: d.code,
-    severity: d.severity,
-    message: d.message,
-    location: { uri: input.uri, range: d.range },
-    related: [],
-    fixes: [],
-  }));
+  findings.push(...circuit.diagnostics.filter((d) => !CODES_REPORTED_BY_CHECKS.has(d.code)).map(fromNetlistDiagnostic));
+
+  let check: CheckResult | undefined;
+  let complete = true;
+  if (input.cancellation?.isCancellationRequested) complete = false;
+  else {
+    const options = input.cancellation ? { cancellation: input.cancellation } : {};
+    check = checkCircuit(circuit, settings, config, options);
+    findings.push(...check.findings);
+    complete = !input.cancellation?.isCancellationRequested;
+  }
+
+  const filesRead = [...circuit.files.keys()];
+  if (input.config) filesRead.push(input.config.uri);
   return {
     uri: input.uri,
     syntax,
-    circuit: undefined,
-    findings,
-    filesRead: [input.uri],
-    complete: true,
+    circuit,
+    check,
+    config,
+    findings: findings.map((finding) => withSeverityOverride(finding, settings)).filter((f): f is Finding => f !== undefined),
+    filesRead,
+    complete,
     milliseconds: performance.now() - started,
   };
+}
+
+function fromNetlistDiagnostic(diagnostic: NetlistDiagnostic): Finding {
+  return {
+    rule: diagnostic.code,
+    severity: diagnostic.severity,
+    message: diagnostic.message,
+    location: diagnostic.location,
+    related: diagnostic.related ?? [],
+    fixes: (diagnostic.suggestions ?? []).map((suggestion, index) => ({
+      title: suggestion.title,
+      preferred: index === 0,
+      edits: suggestion.edits.map((edit) => ({ uri: edit.location.uri, range: edit.location.range, newText: edit.newText })),
+    })),
+  };
+}
+
+/** The user's severity setting for a rule ('off' hides it). */
+function withSeverityOverride(finding: Finding, settings: Settings): Finding | undefined {
+  const override = settings.severities[finding.rule];
+  if (override === undefined) return finding;
+  if (override === 'off') return undefined;
+  return { ...finding, severity: override };
 }
