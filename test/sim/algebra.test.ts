@@ -405,7 +405,7 @@ describe('SparseLU on singular matrices', () => {
     // Column 2 has no entry at all.
     const { matrix } = buildMatrix(3, [[0, 0, 1], [1, 1, 1], [2, 0, 1], [2, 1, 1]]);
     const lu = new SparseLU(matrix);
-    expect(lu.factor()).toEqual({ ok: false, singularColumn: 2 });
+    expect(lu.factor()).toEqual({ ok: false, singularColumn: 2, reason: 'structural' });
     const x = new Float64Array(3);
     lu.solve(Float64Array.of(1, 1, 1), x);
     expect(Array.from(x).every(Number.isNaN)).toBe(true);
@@ -415,7 +415,7 @@ describe('SparseLU on singular matrices', () => {
     // [1 0 0; 1 0 0; 0 1 1]: columns 1 and 2 live in row 2 alone, so they cannot both have a pivot.
     const { matrix } = buildMatrix(3, [[0, 0, 1], [1, 0, 1], [2, 1, 1], [2, 2, 1]]);
     const result = new SparseLU(matrix).factor();
-    expect(result.ok).toBe(false);
+    expect(result).toMatchObject({ ok: false, reason: 'structural' });
     if (!result.ok) expect([1, 2]).toContain(result.singularColumn);
   });
 
@@ -423,7 +423,7 @@ describe('SparseLU on singular matrices', () => {
     // [1 2 0; 2 4 0; 0 0 1]: row 1 is twice row 0, so columns 0 and 1 are dependent.
     const { matrix } = buildMatrix(3, [[0, 0, 1], [0, 1, 2], [1, 0, 2], [1, 1, 4], [2, 2, 1]]);
     const result = new SparseLU(matrix).factor();
-    expect(result.ok).toBe(false);
+    expect(result).toMatchObject({ ok: false, reason: 'numerical' });
     if (!result.ok) expect([0, 1]).toContain(result.singularColumn);
   });
 
@@ -437,7 +437,7 @@ describe('SparseLU on singular matrices', () => {
       if (row === 1) entries.push([size - 1, column, 0.7 * value]);
     }
     const result = new SparseLU(buildMatrix(size, entries).matrix).factor();
-    expect(result.ok).toBe(false);
+    expect(result).toMatchObject({ ok: false, reason: 'numerical' });
     if (!result.ok) expect(result.singularColumn).toBeGreaterThanOrEqual(0);
   });
 
@@ -445,7 +445,7 @@ describe('SparseLU on singular matrices', () => {
     // Unknowns: v(a), i(V1), i(V2); 1 kΩ from a to ground; V1 and V2 both from a to ground.
     const entries: Entry[] = [[0, 0, 1e-3], [0, 1, 1], [1, 0, 1], [0, 2, 1], [2, 0, 1]];
     const result = new SparseLU(buildMatrix(3, entries).matrix).factor();
-    expect(result.ok).toBe(false);
+    expect(result).toMatchObject({ ok: false, reason: 'structural' });
     if (!result.ok) expect([1, 2]).toContain(result.singularColumn);
   });
 
@@ -453,9 +453,9 @@ describe('SparseLU on singular matrices', () => {
     const entries: Entry[] = [[0, 0, 0], [0, 1, 0], [1, 0, 0], [1, 1, 0]];
     const { matrix, slots } = buildMatrix(2, entries);
     const lu = new SparseLU(matrix);
-    expect(lu.factor().ok).toBe(false);
+    expect(lu.factor()).toMatchObject({ ok: false, reason: 'numerical' });
     setValues(matrix, slots, [[0, 0, Number.NaN], [0, 1, 1], [1, 0, 1], [1, 1, 1]]);
-    expect(lu.factor().ok).toBe(false);
+    expect(lu.factor()).toEqual({ ok: false, singularColumn: 0, reason: 'not-finite' });
     // [2 1; 1 1]·[1 2] = [4 3] (worked by hand).
     const good: Entry[] = [[0, 0, 2], [0, 1, 1], [1, 0, 1], [1, 1, 1]];
     setValues(matrix, slots, good);
@@ -471,7 +471,7 @@ describe('SparseLU on singular matrices', () => {
     expect(lu.factor().ok).toBe(true);
     setValues(matrix, slots, [[0, 0, 2], [0, 1, 1], [1, 0, 4], [1, 1, 2]]);
     const result = lu.factor();
-    expect(result.ok).toBe(false);
+    expect(result).toMatchObject({ ok: false, reason: 'numerical' });
     if (!result.ok) expect([0, 1]).toContain(result.singularColumn);
     setValues(matrix, slots, good);
     expect(lu.factor()).toEqual({ ok: true });
@@ -488,7 +488,7 @@ describe('SparseLU on singular matrices', () => {
       setValues(matrix, slots, entries);
       const victim = entries.findIndex(([row, column]) => row !== column);
       matrix.values[slots[victim]] = bad;
-      expect(lu.factor()).toEqual({ ok: false, singularColumn: entries[victim][1] });
+      expect(lu.factor()).toEqual({ ok: false, singularColumn: entries[victim][1], reason: 'not-finite' });
     }
   });
 

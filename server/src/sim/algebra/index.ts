@@ -2,3 +2,4 @@
 export { SparseMatrix } from './matrix.js';
 export { SparseLU } from './lu.js';
 export type { FactorResult, FactorStatistics } from './lu.js';
+export type { SingularReason } from './markowitz.js';

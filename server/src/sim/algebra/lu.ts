@@ -7,12 +7,17 @@
 // pattern, with no search and no allocation. Only when a reused pivot fails
 // the threshold test does it choose the pivots afresh with the current values.
 import type { SparseMatrix } from './matrix.js';
-import { eliminateWithMarkowitz, type ColumnStructure, type EliminationFactors } from './markowitz.js';
+import { eliminateWithMarkowitz, type ColumnStructure, type EliminationFactors, type SingularReason } from './markowitz.js';
 import { NUMERICAL_ZERO_RELATIVE, PIVOT_ACCEPTANCE_THRESHOLD } from './tolerances.js';
 
 const NO_COLUMN = -1;
 
-export type FactorResult = { ok: true } | { ok: false; singularColumn: number };
+/**
+ * `reason` says why the column has no pivot: 'structural' (no entry left in it once the other
+ * columns took their pivots: singular whatever the values), 'numerical' (its entries cancel to
+ * rounding noise), 'not-finite' (it holds a NaN or an infinity).
+ */
+export type FactorResult = { ok: true } | { ok: false; singularColumn: number; reason?: SingularReason };
 
 /** Counters for logs, benchmarks and tests. */
 export interface FactorStatistics {
@@ -75,7 +80,7 @@ export class SparseLU {
     this.structure ??= compressByColumn(matrix);
     this.factored = false;
     const nonFinite = this.measureColumns();
-    if (nonFinite !== NO_COLUMN) return { ok: false, singularColumn: nonFinite };
+    if (nonFinite !== NO_COLUMN) return { ok: false, singularColumn: nonFinite, reason: 'not-finite' };
     if (this.hasOrdering && this.refactor()) {
       this.counters.refactorizations++;
       this.factored = true;
@@ -85,7 +90,7 @@ export class SparseLU {
     const result = eliminateWithMarkowitz(this.structure, matrix.values, this.columnScale);
     if (!result.ok) {
       this.hasOrdering = false;
-      return { ok: false, singularColumn: result.singularColumn };
+      return { ok: false, singularColumn: result.singularColumn, reason: result.reason };
     }
     this.keep(result.factors);
     this.hasOrdering = true;

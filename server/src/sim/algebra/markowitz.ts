@@ -32,7 +32,12 @@ export interface EliminationFactors {
   upperValue: Float64Array;
 }
 
-export type EliminationResult = { ok: true; factors: EliminationFactors } | { ok: false; singularColumn: number };
+/** Why a column has no pivot: no entry left at all, or entries that are all numerical zeros. */
+export type SingularReason = 'structural' | 'numerical' | 'not-finite';
+
+export type EliminationResult =
+  | { ok: true; factors: EliminationFactors }
+  | { ok: false; singularColumn: number; reason: SingularReason };
 
 const NONE = -1;
 
@@ -308,10 +313,15 @@ export function eliminateWithMarkowitz(
     return true;
   };
 
-  /** Picks the next pivot into chosenElement; returns NONE, or the column found singular. */
+  // Set with the column that choosePivot() returns when it finds no pivot.
+  let singularReason: SingularReason = 'numerical';
+
+  /** Picks the next pivot into chosenElement; returns NONE, or the column found singular (reason in singularReason). */
   const choosePivot = (): number => {
     const emptyColumn = columnBuckets.head[0];
+    singularReason = 'structural';
     if (emptyColumn !== NONE) return emptyColumn;
+    singularReason = 'numerical';
     bestCost = Infinity;
     bestRatio = 0;
     chosenElement = NONE;
@@ -351,7 +361,7 @@ export function eliminateWithMarkowitz(
 
   for (let step = 0; step < n; step++) {
     const singular = choosePivot();
-    if (singular !== NONE) return { ok: false, singularColumn: singular };
+    if (singular !== NONE) return { ok: false, singularColumn: singular, reason: singularReason };
     const p = active.elementRow[chosenElement];
     const q = active.elementColumn[chosenElement];
     const pivot = active.elementValue[chosenElement];

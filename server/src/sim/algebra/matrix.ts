@@ -18,7 +18,11 @@ export class SparseMatrix {
     this.size = size;
   }
 
-  /** Registers entry (row, column), 0-based, and returns a stable index into `values`; idempotent. Only before finalize(). */
+  /**
+   * Registers entry (row, column), 0-based, and returns a stable index into `values`; idempotent.
+   * New entries get consecutive indices 0, 1, 2, … in the order they are registered (the solver
+   * relies on it). Only before finalize(); afterwards only an existing entry's index is returned.
+   */
   slot(row: number, column: number): number {
     if (!Number.isInteger(row) || !Number.isInteger(column) || row < 0 || column < 0 || row >= this.size || column >= this.size) {
       throw new RangeError(`matrix entry (${row}, ${column}) is outside a ${this.size}×${this.size} matrix`);
