@@ -410,6 +410,17 @@ describe('diagnostics a user should get', () => {
     expect(element(c, 'R1', 'R').resistance).toBe(4000); // the engines' reading is what is simulated
   });
 
+  // ngspice 39 (run here): `.param rpull=4k7` stops it with "Misplaced operator" (and so does
+  // `{2*4k7}`, which the grammar already reports as a syntax error).
+  test('an ambiguous number in a .param value is an error', () => {
+    const text = 't\n.param rpull=4k7\nR2 a 0 {rpull}\n';
+    const ambiguous = problems(elaborateText(text), 'ambiguous-value');
+    expect(ambiguous.map((d) => [d.severity, d.message, where(d)])).toEqual([
+      ['error', '4k7 is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads 4 k, ignoring the 7); as a resistor marking code (IEC 60062) it means 4.7 k', spanOf(text, '4k7')],
+    ]);
+    expect(ambiguous[0]!.suggestions![0]!.edits[0]!.newText).toBe('4.7k');
+  });
+
   test('parse diagnostics are copied with their file', () => {
     const c = elaborateText('t\n.subckt open a b\nR1 a b 1k\n');
     expect(c.diagnostics.some((d) => d.code === 'syntax' && d.location.uri === TOP)).toBe(true);

@@ -104,8 +104,8 @@ class Elaborator {
     private readonly reader: FileReader,
     private readonly settings: ElaborateOptions,
   ) {
-    this.evaluation = new ParameterEvaluation(this.sink, (fileUri, numberText, range, letter) =>
-      this.checkAmbiguous(fileUri, numberText, range, letter),
+    this.evaluation = new ParameterEvaluation(this.sink, (fileUri, numberText, range, letter, inExpression) =>
+      this.checkAmbiguous(fileUri, numberText, range, letter, inExpression),
     );
   }
 
@@ -632,13 +632,19 @@ class Elaborator {
 
   // ---------------------------------------------------- ambiguous values
 
-  /** `4k7` reads as 4 kΩ in every SPICE engine: say so, with the readings the writer may have meant. */
-  private checkAmbiguous(uri: string, text: string, range: Range, letter: string): void {
+  /**
+   * `4k7` on an element line reads as 4 kΩ in SPICE engines: say so, with the
+   * reading the writer may have meant. Inside `{…}` or a `.param` value ngspice 39
+   * does not truncate but stops ("Misplaced operator", checked by running it).
+   */
+  private checkAmbiguous(uri: string, text: string, range: Range, letter: string, inExpression: boolean): void {
     const reading = readSpiceNumber(text);
     if (!reading || !isAmbiguousNumber(reading)) return;
     const unit = unitOfElement(letter);
     const intended = this.intendedReading(text, letter);
-    let message = `${text} is read as ${formatQuantity(reading.value, unit)} by SPICE engines (the ${reading.ignored} is ignored)`;
+    let message = inExpression
+      ? `${text} is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads ${formatQuantity(reading.value, unit)}, ignoring the ${reading.ignored})`
+      : `${text} is read as ${formatQuantity(reading.value, unit)} by SPICE engines (the ${reading.ignored} is ignored)`;
     const suggestions: { title: string; edits: { location: SourceLocation; newText: string }[] }[] = [];
     const location = { uri, range };
     if (intended) {
@@ -648,7 +654,7 @@ class Elaborator {
     }
     const engine = formatSpiceNumber(reading.value);
     suggestions.push({ title: `Write ${engine} (${formatQuantity(reading.value, unit)}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
-    this.sink.report('warning', 'ambiguous-value', uri, range, message, { suggestions });
+    this.sink.report(inExpression ? 'error' : 'warning', 'ambiguous-value', uri, range, message, { suggestions });
   }
 
   private intendedReading(text: string, letter: string): { value: number; convention: string } | undefined {
@@ -668,8 +674,13 @@ class Elaborator {
         const match = /^(\d+)v(\d+)$/i.exec(text);
         return match ? { value: Number(`${match[1]}.${match[2]}`), convention: 'written as a rail name' } : undefined;
       }
-      default:
-        return undefined;
+      default: {
+        // Without an element to go by, only the letters that mean the same in both
+        // readings are offered: R (×1) and k (×1000).
+        if (!/^\d*[rk]\d+$/i.test(text)) return undefined;
+        const value = readMarkingCode(text, 'R');
+        return value === undefined ? undefined : { value, convention: 'as a resistor marking code (IEC 60062)' };
+      }
     }
   }
 }

@@ -27,8 +27,11 @@ export class ParameterEvaluation {
   readonly stack: Definition[] = [];
   constructor(
     readonly sink: DiagnosticSink,
-    /** Reports ambiguous numbers (`4k7`) wherever they are read. */
-    readonly onNumber: (uri: string, text: string, range: Range, letter: string) => void,
+    /**
+     * Reports ambiguous numbers (`4k7`) wherever they are read. `inExpression` is true inside
+     * `{…}` and in `.param` values, where ngspice refuses them instead of truncating.
+     */
+    readonly onNumber: (uri: string, text: string, range: Range, letter: string, inExpression: boolean) => void,
   ) {}
 }
 
@@ -118,7 +121,7 @@ export class ParameterScope implements ExpressionScope {
     const stack = this.evaluation.stack;
     definition.state = 'evaluating';
     stack.push(definition);
-    const value = definition.scope.evaluateField(definition.field!, definition.uri);
+    const value = evaluateFieldIn(definition.scope, definition.field!, definition.uri, '', true);
     stack.pop();
     // A cycle found while evaluating marks this definition failed already.
     if (definition.state === 'evaluating') {
@@ -141,17 +144,17 @@ export class ParameterScope implements ExpressionScope {
   }
 }
 
-function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, letter: string): number | undefined {
+function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, letter: string, isParameter = false): number | undefined {
   const evaluation = scope.evaluation;
   const context: EvaluationContext = {
     scope,
     uri,
     sink: evaluation.sink,
-    onNumber: (text, range) => evaluation.onNumber(uri, text, range, letter),
+    onNumber: (text, range) => evaluation.onNumber(uri, text, range, letter, true),
   };
   switch (field.kind) {
     case 'number':
-      evaluation.onNumber(uri, field.text, field.range, letter);
+      evaluation.onNumber(uri, field.text, field.range, letter, isParameter);
       return field.value;
     case 'expression':
       // An expression that does not parse already has its syntax diagnostic.
@@ -159,7 +162,7 @@ function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, lette
     case 'word': {
       const number = readSpiceNumber(field.text);
       if (number) {
-        evaluation.onNumber(uri, field.text, field.range, letter);
+        evaluation.onNumber(uri, field.text, field.range, letter, isParameter);
         return number.value;
       }
       return evaluateExpression({ kind: 'ident', name: field.text, range: field.range }, context);
