@@ -14,6 +14,8 @@ import { VccsDevice } from './devices/vccs.js';
 import { VcvsDevice } from './devices/vcvs.js';
 import { VoltageSourceDevice } from './devices/voltage-source.js';
 import { VoltageSwitchDevice } from './devices/voltage-switch.js';
+import { BjtDevice } from './devices/bjt.js';
+import { MosfetDevice } from './devices/mosfet.js';
 import { circuitLocation, diagnoseStructure, isVoltageDefined } from './diagnose.js';
 import { CircuitSystem, StructureBuilder, type Device } from './mna.js';
 
@@ -65,6 +67,10 @@ function createDevice(element: Element): Device | undefined {
       return new CurrentSwitchDevice(element);
     case 'D':
       return new DiodeDevice(element);
+    case 'Q':
+      return new BjtDevice(element);
+    case 'M':
+      return new MosfetDevice(element);
     default:
       return undefined; // C (open at DC), K (no effect at DC), unmodeled
   }
@@ -109,10 +115,7 @@ export function compileCircuit(circuit: Circuit): CompiledCircuit {
       continue;
     }
     if (element.type === 'C' || element.type === 'K') continue;
-    if (element.type === 'Q' || element.type === 'M') {
-      leaveOpen(element, 'transistors are not simulated yet');
-      continue;
-    }
+
     active.push(element);
   }
 
