@@ -40,6 +40,8 @@ export class Checker {
     private readonly workspace: Workspace,
     private readonly settingsFor: (uri: string) => Promise<ServerSettings>,
     private readonly pages: RulePages,
+    /** Called after a document's check is published (the server refreshes inlay hints). */
+    private readonly afterPublish: (uri: string) => void = () => {},
   ) {}
 
   private state(uri: string): DocumentState {
@@ -112,7 +114,18 @@ export class Checker {
     const config = this.workspace.readConfig(uri);
     let analysis: Analysis;
     try {
-      analysis = await analyze({ uri, text: document.getText(), files: reader, settings: settings.core, config, cancellation: token });
+      const workspaceRoot = this.workspace.folderUriOf(uri);
+      analysis = await analyze({
+        uri,
+        text: document.getText(),
+        files: reader,
+        settings: settings.core,
+        config,
+        cancellation: token,
+        // The reader refuses too (for every folder of a multi-root workspace); the pipeline says why at the include.
+        restricted: settings.core.restricted,
+        ...(workspaceRoot ? { workspaceRoot } : {}),
+      });
     } catch (error) {
       this.reportInternalError(uri, version, error);
       return;
@@ -138,6 +151,7 @@ export class Checker {
     if (!contributions.has(uri)) contributions.set(uri, []);
     this.replaceContributions(uri, contributions, version);
     this.sendStatus(uri, version, analysis.milliseconds);
+    this.afterPublish(uri);
   }
 
   /** Replaces what the analysis of `analyzed` contributes to each file, and publishes the files that changed. */

@@ -3,9 +3,10 @@
 import { parse, type ParseResult } from '@pnlint/grammar';
 import type { Connection, TextDocuments } from 'vscode-languageserver';
 import type { TextDocument } from 'vscode-languageserver-textdocument';
+import type { DiodeReport } from '../checks/index.js';
 import type { Checked, Checker } from './checking.js';
 import { buildIndex, IncludedSyntaxCache, type SyntaxIndex } from './syntax.js';
-import type { Workspace } from './workspace.js';
+import { uriKey, type Workspace } from './workspace.js';
 
 export class FeatureContext {
   private readonly parsed = new Map<string, { version: number; syntax: ParseResult }>();
@@ -42,6 +43,16 @@ export class FeatureContext {
   current(document: TextDocument): Checked | undefined {
     const checked = this.checker.latest(document.uri);
     return checked && checked.version === document.version ? checked : undefined;
+  }
+
+  /**
+   * The current check's reports of the diodes written on `line` of the document: one per
+   * instance when the line is inside a subcircuit (`X1.D1`, `X2.D1`).
+   */
+  diodeReportsAt(document: TextDocument, line: number): DiodeReport[] {
+    const reports = this.current(document)?.analysis.check?.diodes ?? [];
+    const key = uriKey(document.uri);
+    return reports.filter((report) => report.location.range.start.line === line && uriKey(report.location.uri) === key);
   }
 
   forget(uri: string): void {

@@ -11,9 +11,11 @@ import {
   type SubcktStatement,
 } from '@pnlint/grammar';
 import { MarkupKind, type Hover, type HoverParams } from 'vscode-languageserver';
-import { RATING_SYMBOLS, type RatingKey } from '../checks/vocabulary.js';
+import type { TextDocument } from 'vscode-languageserver-textdocument';
+import type { DiodeReport } from '../checks/index.js';
+import { KIND_NAMES, RATING_SYMBOLS, type RatingKey } from '../checks/vocabulary.js';
 import { describeRule } from '../rule-ids.js';
-import { formatQuantity } from '../units.js';
+import { formatPercent, formatQuantity } from '../units.js';
 import type { FeatureContext } from './context.js';
 import { describeModelParameter, deviceOfModelType } from './model-parameters.js';
 import { toLspRange } from './positions.js';
@@ -54,13 +56,13 @@ export function hover(context: FeatureContext, params: HoverParams): Hover | nul
   const syntax = context.syntax(document);
   const target = findTarget(syntax, params.position);
   if (!target) return null;
-  const markdown = describeTarget(context, target, () => context.index(document));
+  const markdown = describeTarget(context, document, target, () => context.index(document));
   if (!markdown) return null;
   const range = target.identifier?.range ?? target.field?.range;
   return { contents: { kind: MarkupKind.Markdown, value: markdown }, ...(range ? { range: toLspRange(range) } : {}) };
 }
 
-function describeTarget(context: FeatureContext, target: SyntaxTarget, index: () => SyntaxIndex): string | undefined {
+function describeTarget(context: FeatureContext, document: TextDocument, target: SyntaxTarget, index: () => SyntaxIndex): string | undefined {
   const { statement, field } = target;
   if (!field) return undefined;
 
@@ -71,7 +73,7 @@ function describeTarget(context: FeatureContext, target: SyntaxTarget, index: ()
   if (statement.kind === 'model' && field === statement.name) return describeModel(statement, undefined);
   if (statement.kind === 'subckt' && field === statement.name) return describeSubcircuit(statement);
   if (statement.kind === 'element') {
-    if (field === statement.name) return describeElement(context, statement, target.scope, index());
+    if (field === statement.name) return describeElement(context, document, statement, target.scope, index());
     if (field.kind === 'word' || field.kind === 'number') {
       const found = index();
       if (statement.letter === 'X' && field === instanceSubcircuit(statement)) {
@@ -164,7 +166,7 @@ function describeParameter(index: SyntaxIndex, name: string, scope: Scope): stri
   return `**${definition.node.key.text}** = \`${fieldText(definition.node.value)}\`${where}${whereDefined(definition)}`;
 }
 
-function describeElement(context: FeatureContext, element: ElementStatement, scope: Scope, index: SyntaxIndex): string {
+function describeElement(context: FeatureContext, document: TextDocument, element: ElementStatement, scope: Scope, index: SyntaxIndex): string {
   const kind = ELEMENT_NAMES[element.letter] ?? `element of type ${element.letter}`;
   const positional = positionalFields(element);
   const lines: string[] = [];
@@ -193,10 +195,46 @@ function describeElement(context: FeatureContext, element: ElementStatement, sco
   } else {
     lines.push(`**${element.name.text}** — ${kind}${nodes.length > 0 ? `, nodes ${nodes.join(' ')}` : ''}`);
   }
+  if (element.letter === 'D') {
+    const reports = context.diodeReportsAt(document, element.range.start.line);
+    for (const report of reports) lines.push('', describeDiodeReport(report, reports.length > 1));
+    if (reports.length > 0) {
+      const caution = context.current(document)?.analysis.findings.find((finding) => finding.rule === HAZARD_RULE);
+      if (caution) lines.push('', `> ${caution.message}`);
+      return lines.join('\n');
+    }
+    if (!context.current(document)) lines.push('', '_Being checked: the operating point shows here when the check is done._');
+  }
   const modelField = positional[nodeCount];
   const model = modelField && modelField.kind === 'word' ? resolveName(index.models, modelField.text, scope, modelName) : undefined;
   if (model) lines.push('', describeModel(model.node, model));
-  void context;
+  return lines.join('\n');
+}
+
+/** The finding that says a circuit touches hazardous voltages (a design aid, not a safety approval). */
+const HAZARD_RULE = 'hazardous-voltage';
+
+/** A diode's kind and why, its ratings and their sources, and its operating point and margins at each corner. */
+function describeDiodeReport(report: DiodeReport, named: boolean): string {
+  const lines = [
+    `${named ? `**${report.element}**: ` : ''}**${KIND_NAMES[report.kind]}** — ${report.kindReason}. A \`*pnlint: rating ${report.element.split('.').pop()} kind=…\` directive overrides it.`,
+  ];
+  if (report.ratings.length > 0) lines.push('', `Ratings: ${report.ratings.map((rating) => rating.text).join(' · ')}`);
+  if (report.unchecked) {
+    lines.push('', `Not checked: ${report.unchecked}.`);
+    return lines.join('\n');
+  }
+  lines.push('', '| corner | voltage | current | power | region | use of rating |', '| --- | --- | --- | --- | --- | --- |');
+  for (const corner of report.corners) {
+    const where = `${corner.description}${corner.quasiStatic ? ' (quasi-static)' : ''}`;
+    if (!corner.point) {
+      lines.push(`| ${where} | not solved | | | | |`);
+      continue;
+    }
+    const { voltage, current, power, region } = corner.point;
+    const margins = corner.margins.map((margin) => `${RATING_SYMBOLS[margin.key].symbol} ${formatPercent(margin.fraction)}`).join(' · ');
+    lines.push(`| ${where} | ${formatQuantity(voltage, 'V')} | ${formatQuantity(current, 'A')} | ${formatQuantity(power, 'W')} | ${region} | ${margins || '—'} |`);
+  }
   return lines.join('\n');
 }
 

@@ -18,6 +18,7 @@ import { completion } from './completion.js';
 import { FeatureContext } from './context.js';
 import { definition } from './definition.js';
 import { hover } from './hover.js';
+import { inlayHints } from './inlay-hints.js';
 import { operatingPoint } from './operating-point.js';
 import { OPERATING_POINT_REQUEST, type InitializationOptions, type OperatingPointParams } from './protocol.js';
 import { RulePages } from './rule-pages.js';
@@ -71,7 +72,10 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
     return cached;
   };
 
-  const checker = new Checker(connection, documents, workspace, settingsFor, pages);
+  const refreshInlayHints = () => {
+    if (capabilities.workspace?.inlayHint?.refreshSupport) void connection.languages.inlayHint.refresh().catch(() => undefined);
+  };
+  const checker = new Checker(connection, documents, workspace, settingsFor, pages, refreshInlayHints);
   const context = new FeatureContext(connection, documents, workspace, checker);
 
   connection.onInitialize((params): InitializeResult => {
@@ -86,6 +90,7 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
         hoverProvider: true,
         definitionProvider: true,
         documentSymbolProvider: true,
+        inlayHintProvider: true,
         completionProvider: { triggerCharacters: ['.', ' ', '='] },
         codeActionProvider: { codeActionKinds: [CodeActionKind.QuickFix, FIX_ALL_KIND] },
         workspace: { workspaceFolders: { supported: true, changeNotifications: true } },
@@ -149,6 +154,7 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
   connection.onHover(guarded(connection, 'hover', null, (params) => hover(context, params)));
   connection.onDefinition(guarded(connection, 'definition', null, (params) => definition(context, params)));
   connection.onDocumentSymbol(guarded(connection, 'document symbols', [], (params) => documentSymbols(context, params)));
+  connection.languages.inlayHint.on(guarded(connection, 'inlay hints', [], (params) => inlayHints(context, params)));
   connection.onCompletion(guarded(connection, 'completion', [], (params) => completion(context, params)));
   connection.onCodeAction(guarded(connection, 'code actions', [], (params) => codeActions(context, params, { versionedEdits: versionedEdits() })));
   connection.onRequest(

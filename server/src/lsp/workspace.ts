@@ -72,6 +72,13 @@ export class Workspace {
     return this.documents.all().find((document) => uriKey(document.uri) === key);
   }
 
+  /** The `file:` uri of the workspace folder holding `uri`, if any. */
+  folderUriOf(uri: string): string | undefined {
+    const path = uriToPath(uri);
+    const folder = path === undefined ? undefined : this.folderOf(path);
+    return folder === undefined ? undefined : pathToFileURL(folder).href;
+  }
+
   /** Why `uri` may not be read in restricted mode, or undefined when it may. */
   refusal(uri: string): string | undefined {
     if (!this.restricted) return undefined;
