@@ -1,6 +1,7 @@
 // Elaboration of whole netlists (parsed by the grammar package). Circuits are
 // scenarios of our own; expected values name their source beside each check.
 import { describe, expect, test } from 'vitest';
+import fc from 'fast-check';
 import { element, elaborateText, memoryReader, problems, spanOf, TOP, where } from './helpers.js';
 import { elaborate } from '../../server/src/netlist/index.js';
 
@@ -254,6 +255,15 @@ describe('subcircuits', () => {
     expect(problems(circuit)).toEqual([]);
   });
 
+  test('params: keyword, and an override the subcircuit does not declare', () => {
+    const text = 't\nX1 a 0 pad params: r=220 tol=5\n.subckt pad p q r=1k\nR1 p q {r}\n.ends\n';
+    const c = elaborateText(text);
+    expect(element(c, 'X1.R1', 'R').resistance).toBe(220);
+    const [d] = problems(c);
+    expect(d!.message).toBe('subcircuit pad declares no parameter tol; it is ignored');
+    expect(where(d!)).toEqual(spanOf(text, 'tol'));
+  });
+
   test('recursion is a diagnostic, not a stack overflow', () => {
     const looped = elaborateText('t\nX1 a 0 ping\n.subckt ping p q\nX2 p q pong\n.ends\n.subckt pong p q\nX3 p q ping\n.ends\n');
     const [d] = problems(looped);
@@ -358,6 +368,18 @@ describe('includes and libraries', () => {
     expect(d!.location.uri).toBe('/project/loop2.inc');
   });
 
+  test('an include in a branch not taken is not read', () => {
+    const reader = memoryReader(files);
+    const c = elaborate(TOP, 't\n.param board=1\n.if (board == 2)\n.include nothere.inc\n.else\n.include parts.inc\n.endif\n', reader);
+    expect(reader.reads).not.toContain('/project/nothere.inc');
+    expect(problems(c).map((d) => d.message)).toEqual(['unknown parameter bogus']);
+  });
+
+  test('a .lib section that pulls in itself is a cycle', () => {
+    const c = elaborateText('t\n.lib self.lib a\n', { '/project/self.lib': '.lib a\n.lib self.lib a\n.endl\n' });
+    expect(problems(c).map((d) => d.message)).toEqual(['include cycle: section a of self.lib is already being read (self.lib#a → self.lib#a)']);
+  });
+
   test('a missing .lib section names the sections there are', () => {
     const [d] = problems(elaborateText('t\n.lib models/leds.lib fast\n', files));
     expect(d!.message).toBe('models/leds.lib has no section fast (it has typ, worst)');
@@ -421,6 +443,12 @@ describe('diagnostics a user should get', () => {
     expect(ambiguous[0]!.suggestions![0]!.edits[0]!.newText).toBe('4.7k');
   });
 
+  test('a line with a syntax error gets that one diagnostic, not more from the element reader', () => {
+    const c = elaborateText('t\nR1 a 0 {2*(}\nR2 a 0 1k\n');
+    expect(problems(c).map((d) => d.code)).toEqual(['syntax']);
+    expect(c.elements.map((e) => e.name)).toEqual(['R2']);
+  });
+
   test('parse diagnostics are copied with their file', () => {
     const c = elaborateText('t\n.subckt open a b\nR1 a b 1k\n');
     expect(c.diagnostics.some((d) => d.code === 'syntax' && d.location.uri === TOP)).toBe(true);
@@ -481,6 +509,28 @@ describe('never throws', () => {
   test('garbage in, diagnostics out', () => {
     const inputs = ['', '\n\n', 'x\n.subckt\n.ends\nX1\n', 't\n.param a={', 't\nR1 a b {1/0}\nV1 a 0 SIN(', 't\n.include\n.lib\nK1\nQ1 a\nM1 a b\n', 't\n.if (\nR1 a 0 1\n'];
     for (const input of inputs) expect(() => elaborateText(input)).not.toThrow();
+  });
+
+  // Property: mutations of a valid netlist (characters dropped, inserted or replaced) never throw nor hit an internal error.
+  test('mutated netlists never throw', () => {
+    const seed = 't\n.param r={2*k} k=1k\n.subckt cell p q rv=1\nR1 p q {rv}\nX9 p q cell\n.ends\nX1 a 0 cell rv=3\nV1 a 0 SIN(0 1 1k)\nD1 a 0 DX\n.model DX D(is=1e-14)\n.if (r > 1)\n.include x.inc\n.endif\n';
+    const alphabet = [...'{}()=.+*/-,;$ \nRXVD0a1k'];
+    fc.assert(
+      fc.property(fc.array(fc.tuple(fc.nat(seed.length), fc.constantFrom(...alphabet), fc.nat(2)), { maxLength: 12 }), (edits) => {
+        let text = seed;
+        for (const [at, char, kind] of edits) {
+          const i = at % (text.length + 1);
+          text = kind === 0 ? text.slice(0, i) + text.slice(i + 1) : kind === 1 ? text.slice(0, i) + char + text.slice(i) : text.slice(0, i) + char + text.slice(i + 1);
+        }
+        const started = performance.now();
+        const c = elaborateText(text, { '/project/x.inc': '.include top.cir\n' });
+        // elaborate() turns a bug of ours into an "internal error" diagnostic: none may appear.
+        const internal = c.diagnostics.filter((d) => /internal error|parser failed/.test(d.message));
+        expect(internal.map((d) => d.message)).toEqual([]);
+        return performance.now() - started < 2000;
+      }),
+      { numRuns: 300 },
+    );
   });
 
   test('a reader that throws is a missing file', () => {

@@ -496,7 +496,8 @@ class Elaborator {
       location,
       instances: frame.instances,
       uri,
-      sink: this.sink,
+      // A line with a syntax error already has its one diagnostic: read what can be read, quietly.
+      sink: statement.incomplete ? new DiagnosticSink() : this.sink,
       node: (field: NodeField) => this.node(frame, field.text),
       value: (field, letter) => frame.params.evaluateField(field, uri, letter),
       model: (name) => this.findModel(frame, name),
