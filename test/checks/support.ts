@@ -32,3 +32,21 @@ export function findingsOf(result: CheckResult, rule: string) {
 export function problems(result: CheckResult) {
   return result.findings.filter((finding) => finding.severity !== 'info');
 }
+
+import { runNgspiceOperatingPoint } from '../support/ngspice.js';
+
+/** One value from ngspice 39's operating point of `netlist` (`i(vam)`, `v(out)`); throws when it did not solve. */
+export function ngspiceValue(netlist: string, vector: string): number {
+  const run = runNgspiceOperatingPoint(netlist, { vectors: [vector] });
+  const value = run.values.get(vector.toLowerCase());
+  if (!run.ok || value === undefined) throw new Error(`ngspice did not solve: ${run.failure ?? 'no value'}\n${run.deck}`);
+  return value;
+}
+
+/** The solved operating point of one diode at one corner, from the check's report. */
+export function diodeAt(result: CheckResult, diode: string, corner: string) {
+  const report = result.diodes.find((each) => each.element === diode);
+  const point = report?.corners.find((each) => each.corner === corner)?.point;
+  if (!point) throw new Error(`no operating point for ${diode} at ${corner}`);
+  return point;
+}

@@ -222,8 +222,13 @@ function checkedDiodes(
 ): CheckedDiode[] {
   // Nodes that an unmodeled element can move: the checks there would rest on a wrong number.
   const tainted = new Map<string, string>();
+  const reportedUnmodeled = [...circuit.diagnostics, ...solves.flatMap((result) => result.diagnostics)].filter(
+    (diagnostic) => diagnostic.code === 'unmodeled-element',
+  );
+  const sameLocation = (a: SourceLocation, b: SourceLocation) => a.uri === b.uri && a.range.start.offset === b.range.start.offset;
   for (const element of circuit.elements) {
-    if (element.type !== 'unmodeled') continue;
+    const unmodeled = element.type === 'unmodeled' || reportedUnmodeled.some((diagnostic) => sameLocation(diagnostic.location, element.location));
+    if (!unmodeled) continue;
     for (const node of element.nodes) for (const reached of nodesWithinRails(topology, node)) tainted.set(reached, element.name);
   }
   const forwardVoltages = new Map<string, number | undefined>();

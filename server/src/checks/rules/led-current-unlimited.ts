@@ -3,7 +3,7 @@
 // LED with no real limit at all, whose current only its own forward voltage sets.
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
-import { atCorner, type CheckContext } from '../context.js';
+import { atCorner, type CheckContext, type CheckedDiode } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
 import { seriesResistors } from '../topology.js';
@@ -50,7 +50,8 @@ export const ledCurrentUnlimited: Rule = {
         continue;
       }
       // Within its rating now, but is anything setting the current besides the LED itself?
-      if (!thevenin) continue;
+      // (LEDs in parallel look like a low resistance to each other: shared-led-resistor speaks for them.)
+      if (!thevenin || inParallelWithAnotherLed(context, diode)) continue;
       const smallestLimit = LED_FORWARD_VOLTAGE_SPREAD / (LED_CURRENT_CHANGE_LIMIT * worst.value);
       if (thevenin.resistance >= smallestLimit) continue;
       const seen = thevenin.resistance === 0 ? 'an ideal source holds its terminals' : `the circuit around it looks like ${formatQuantity(thevenin.resistance, 'Ω')}`;
@@ -68,3 +69,10 @@ export const ledCurrentUnlimited: Rule = {
     return findings;
   },
 };
+
+function inParallelWithAnotherLed(context: CheckContext, diode: CheckedDiode): boolean {
+  const [anode, cathode] = diode.element.nodes;
+  return context.diodes.some(
+    (other) => other !== diode && other.kind === 'led' && other.element.nodes[0] === anode && other.element.nodes[1] === cathode,
+  );
+}

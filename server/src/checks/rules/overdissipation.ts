@@ -1,0 +1,89 @@
+// overdissipation: the power in a diode, a zener, or the resistor in series with an LED or a
+// zener, at the worst corner, against its rating. A resistor without a rating gets the
+// default power rating setting.
+import type { Resistor } from '../../netlist/circuit.js';
+import type { Finding } from '../../findings.js';
+import { formatQuantity } from '../../units.js';
+import { atCorner, type CheckContext } from '../context.js';
+import type { CornerPlan } from '../corners.js';
+import { makeFinding } from '../finding.js';
+import { describeRating } from '../ratings.js';
+import { seriesResistors } from '../topology.js';
+import { worstCorner } from '../thresholds.js';
+import { KIND_NAMES } from '../vocabulary.js';
+import { cornerSources } from './related.js';
+import type { Rule } from './rule.js';
+
+const ID = 'overdissipation';
+
+export const overdissipation: Rule = {
+  id: ID,
+  check(context: CheckContext): Finding[] {
+    const findings: Finding[] = [];
+    const resistorsToCheck = new Map<Resistor, string>();
+    for (const diode of context.diodes) {
+      if (diode.unchecked) continue;
+      if (diode.kind === 'led' || diode.kind === 'zener') {
+        for (const resistor of seriesResistors(context.topology, diode.element)) if (!resistorsToCheck.has(resistor)) resistorsToCheck.set(resistor, diode.element.name);
+      }
+      const worst = worstCorner(diode, (at) => Math.abs(at.point.power));
+      if (!worst) continue;
+      let rating = diode.ratings.pd;
+      let limitText = rating ? describeRating('pd', rating) : undefined;
+      if (!rating && diode.kind === 'zener' && diode.ratings.izm && diode.ratings.vz) {
+        // No power rating, but IZM × VZ is the same limit.
+        const limit = diode.ratings.izm.value * diode.ratings.vz.value;
+        rating = { value: limit, source: diode.ratings.izm.source };
+        limitText = `${formatQuantity(limit, 'W')} (${describeRating('izm', diode.ratings.izm)} × ${describeRating('vz', diode.ratings.vz)})`;
+      }
+      if (!rating || worst.value <= rating.value) continue;
+      const typical = rating.source.origin === 'library';
+      findings.push(
+        makeFinding(
+          ID,
+          typical ? 'warning' : 'error',
+          `${KIND_NAMES[diode.kind]} ${diode.element.name} dissipates ${formatQuantity(worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
+          diode.element.location,
+          { element: diode.element.name, related: cornerSources(context, worst.at.plan) },
+        ),
+      );
+    }
+    for (const [resistor, diodeName] of resistorsToCheck) {
+      const rating = context.resistors.get(resistor.name)?.power;
+      const worst = worstResistorPower(context, resistor);
+      if (!rating || !worst || worst.power <= rating.value) continue;
+      findings.push(
+        makeFinding(
+          ID,
+          'error',
+          `Resistor ${resistor.name} in series with ${diodeName} dissipates ${formatQuantity(worst.power, 'W')} ${atCorner(worst.plan)}; rating ${describeRating('p', rating)}.`,
+          resistor.location,
+          {
+            element: resistor.name,
+            related: [
+              ...cornerSources(context, worst.plan),
+              ...(context.elementNamed(diodeName) ? [{ location: context.elementNamed(diodeName)!.location, message: `${diodeName}, in series` }] : []),
+            ],
+          },
+        ),
+      );
+    }
+    return findings;
+  },
+};
+
+/** V² / R at each solved corner, with the corner's resistor scaling. */
+function worstResistorPower(context: CheckContext, resistor: Resistor): { power: number; plan: CornerPlan } | undefined {
+  let worst: { power: number; plan: CornerPlan } | undefined;
+  context.solves.forEach((result, index) => {
+    if (!result.ok) return;
+    const plan = context.plans[index]!;
+    const [first, second] = resistor.nodes;
+    const voltage = (result.point.nodes[first!] ?? 0) - (result.point.nodes[second!] ?? 0);
+    const resistance = resistor.resistance * (plan.corner.scale?.[resistor.name] ?? 1);
+    if (!(resistance > 0)) return;
+    const power = (voltage * voltage) / resistance;
+    if (!worst || power > worst.power) worst = { power, plan };
+  });
+  return worst;
+}
