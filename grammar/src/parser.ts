@@ -8,9 +8,10 @@
 // 4. Each line becomes a statement; blocks (`.subckt`, `.lib`, `.if`) are nested.
 
 import type { IToken } from 'chevrotain';
-import type { ParseDiagnostic, ParseOptions, ParseResult, Statement } from './ast.js';
+import type { Field, ParseDiagnostic, ParseOptions, ParseResult, Statement } from './ast.js';
 import { FieldMaker, readFieldLines, type FieldLine } from './fields.js';
 import {
+  atLineStart,
   CommentLine,
   Continuation,
   ControlBlock,
@@ -22,12 +23,14 @@ import {
   Title,
   TITLE_MODE,
   TitleNewline,
+  Word,
 } from './lexer.js';
 import { LineIndex } from './positions.js';
 import { nestBlocks } from './structure.js';
 import { needsFields, StatementBuilder, type LineResult, type LogicalLine } from './statements.js';
 
-type Item = { line: LogicalLine } | { statement: Statement };
+/** What a chunk's tokens group into: a logical line still to read, or a finished statement. */
+type Item = LogicalLine | Statement;
 
 export function parse(text: string, options: ParseOptions = {}): ParseResult {
   try {
@@ -49,31 +52,109 @@ export function parse(text: string, options: ParseOptions = {}): ParseResult {
   }
 }
 
+/**
+ * The text is read in chunks of about this many characters, cut at the start of a
+ * statement, so that the tokens of one chunk are garbage before the next is lexed.
+ * (Measured: holding every token of a 10 MB file alive costs more in garbage
+ * collection than lexing it.)
+ */
+const CHUNK_SIZE = 64 * 1024;
+
 function parseUnguarded(text: string, options: ParseOptions): ParseResult {
   const index = new LineIndex(text);
   const maker = new FieldMaker(index);
   const diagnostics: ParseDiagnostic[] = [];
-  const lexed = netlistLexer.tokenize(text, options.isInclude ? MAIN_MODE : TITLE_MODE);
-  const items = groupLines(lexed.tokens, maker, diagnostics);
-
-  const fieldTokens: IToken[][] = [];
-  for (const item of items) if ('line' in item && needsFields(item.line)) fieldTokens.push(item.line.tokens);
-  const fieldLines = readFieldLines(fieldTokens, maker);
-
   const builder = new StatementBuilder(maker, diagnostics);
   const results: LineResult[] = [];
-  let next = 0;
-  for (const item of items) {
-    if ('statement' in item) {
-      results.push(item.statement);
-      continue;
-    }
-    const reading: FieldLine | undefined = needsFields(item.line) ? fieldLines[next++] : undefined;
-    results.push(builder.build(item.line, reading?.fields, reading?.problem));
+  const controlBlocks = findControlBlocks(text);
+  let start = 0;
+  let ended = false;
+  while (start < text.length && !ended) {
+    const end = chunkEnd(text, start, CHUNK_SIZE, controlBlocks);
+    const mode = start === 0 && !options.isInclude ? TITLE_MODE : MAIN_MODE;
+    const tokens = netlistLexer.tokenize(start === 0 && end === text.length ? text : text.slice(start, end), mode).tokens;
+    if (start > 0) for (const token of tokens) token.startOffset += start;
+    const last = tokens[tokens.length - 1];
+    ended = last !== undefined && last.tokenType === EndAndRest;
+    readChunk(tokens, maker, builder, diagnostics, results);
+    start = end;
   }
   const statements = nestBlocks(results, diagnostics);
   diagnostics.sort((a, b) => a.range.start.offset - b.range.start.offset);
   return { statements, diagnostics };
+}
+
+function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilder, diagnostics: ParseDiagnostic[], results: LineResult[]): void {
+  const items = groupLines(tokens, maker, diagnostics);
+  // Lines of plain words (most element lines) need no grammar: each word is a field.
+  const structured: IToken[][] = [];
+  for (const item of items) if ('tokens' in item && !item.plain && needsFields(item)) structured.push(item.tokens);
+  const fieldLines = readFieldLines(structured, maker);
+  let next = 0;
+  for (const item of items) {
+    if (!('tokens' in item)) {
+      results.push(item);
+      continue;
+    }
+    if (!needsFields(item)) {
+      results.push(builder.build(item, undefined, undefined));
+    } else if (item.plain) {
+      const fields: Field[] = new Array(item.tokens.length);
+      for (let at = 0; at < item.tokens.length; at++) fields[at] = maker.wordOrNumber(item.tokens[at]!);
+      results.push(builder.build(item, fields, undefined));
+    } else {
+      const reading: FieldLine = fieldLines[next++]!;
+      results.push(builder.build(item, reading.fields, reading.problem));
+    }
+  }
+}
+
+const LINE_BREAK = /\r\n?|\n/g;
+const CONTROL_WORD = /\.control(?=[\s;]|$)/gi;
+const ENDC_LINE = /^[ \t]*\.endc(?=[\s;]|$)[^\r\n]*/gim;
+
+/** The `.control` … `.endc` blocks of the text, as [start, end) offsets; a chunk never cuts one. */
+function findControlBlocks(text: string): [number, number][] {
+  const blocks: [number, number][] = [];
+  CONTROL_WORD.lastIndex = 0;
+  for (let found = CONTROL_WORD.exec(text); found; found = CONTROL_WORD.exec(text)) {
+    if (!atLineStart(text, found.index)) continue;
+    ENDC_LINE.lastIndex = found.index;
+    const endc = ENDC_LINE.exec(text);
+    const end = endc ? endc.index + endc[0].length : text.length;
+    blocks.push([found.index, end]);
+    CONTROL_WORD.lastIndex = end;
+  }
+  return blocks;
+}
+
+/**
+ * Where the chunk that starts at `start` ends: at the start of a line that begins a new
+ * statement (a letter or a dot command; not `+`, `*`, a comment or a blank line, which may
+ * belong to the statement before) and outside any `.control` block.
+ */
+function chunkEnd(text: string, start: number, size: number, controlBlocks: [number, number][]): number {
+  let from = start + size;
+  for (;;) {
+    if (from >= text.length) return text.length;
+    const boundary = nextStatementStart(text, from);
+    const inside = controlBlocks.find(([blockStart, blockEnd]) => blockStart < boundary && boundary < blockEnd);
+    if (!inside) return boundary;
+    from = inside[1];
+  }
+}
+
+function nextStatementStart(text: string, from: number): number {
+  LINE_BREAK.lastIndex = from;
+  for (let found = LINE_BREAK.exec(text); found; found = LINE_BREAK.exec(text)) {
+    const lineStart = found.index + found[0].length;
+    let first = lineStart;
+    while (first < text.length && (text.charCodeAt(first) === 32 || text.charCodeAt(first) === 9)) first++;
+    const code = text.charCodeAt(first);
+    const lower = code | 0x20;
+    if ((lower >= 97 && lower <= 122) || code === 46 /* . */) return lineStart;
+  }
+  return text.length;
 }
 
 /** Groups tokens into logical lines and stand-alone statements, in source order. */
@@ -97,7 +178,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
     }
     if (type === CommentLine) {
       // A comment line may stand between a line and its continuation: it does not end the statement.
-      items.push({ statement: { kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) } });
+      items.push({ kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) });
       continue;
     }
     if (type === Continuation) {
@@ -124,16 +205,16 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
     }
     if (skipping) continue;
     if (type === Title) {
-      items.push({ statement: { kind: 'title', text: token.image, range: maker.tokenRange(token) } });
+      items.push({ kind: 'title', text: token.image, range: maker.tokenRange(token) });
       continue;
     }
     if (type === ControlBlock) {
-      items.push({ statement: controlStatement(token, maker, diagnostics) });
+      items.push(controlStatement(token, maker, diagnostics));
       continue;
     }
     if (type === EndAndRest) {
       const word = /^\.end/i.exec(token.image)![0];
-      items.push({ statement: { kind: 'end', range: maker.index.range(token.startOffset, token.startOffset + word.length) } });
+      items.push({ kind: 'end', range: maker.index.range(token.startOffset, token.startOffset + word.length) });
       finish();
       continue;
     }
@@ -143,14 +224,15 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
         current.end = token.startOffset + token.image.length;
       } else {
         // A line holding only a `;` or `$` comment reads as a comment line.
-        items.push({ statement: { kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) } });
+        items.push({ kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) });
       }
       continue;
     }
     if (!current) {
-      current = { tokens: [], comment: undefined, end: 0 };
-      items.push({ line: current });
+      current = { tokens: [], comment: undefined, end: 0, plain: true };
+      items.push(current);
     }
+    if (type !== Word) current.plain = false;
     current.tokens.push(token);
     current.end = token.startOffset + token.image.length;
   }

@@ -24,6 +24,8 @@ export interface LogicalLine {
   comment: IToken | undefined;
   /** End offset of the last token, the comment included. */
   end: number;
+  /** Every token is a plain word: the line needs no grammar to read. */
+  plain: boolean;
 }
 
 /** Lines that close or split a block; the structure pass consumes them. */
@@ -121,7 +123,7 @@ export class StatementBuilder {
   /** Builds the statement of one line; `fields` is the field parser's reading when it read the line. */
   build(line: LogicalLine, fields: Field[] | undefined, fieldProblem: { message: string; range: Range } | undefined): LineResult {
     const first = line.tokens[0]!;
-    const range = this.maker.index.range(first.startOffset, line.end);
+    const range = this.lineRange(line, fields);
     this.maker.problem = fieldProblem;
     const command = dotCommandOf(line);
     let result: LineResult;
@@ -144,6 +146,16 @@ export class StatementBuilder {
       if (problem) result.incomplete = true;
     }
     return result;
+  }
+
+  /** The statement's range; its ends are the very position objects of its first and last field when they coincide. */
+  private lineRange(line: LogicalLine, fields: Field[] | undefined): Range {
+    const index = this.maker.index;
+    const firstField = fields?.[0];
+    const lastField = fields?.[fields.length - 1];
+    const start = firstField && firstField.range.start.offset === line.tokens[0]!.startOffset ? firstField.range.start : index.position(line.tokens[0]!.startOffset);
+    const end = lastField && lastField.range.end.offset === line.end ? lastField.range.end : index.position(line.end);
+    return { start, end };
   }
 
   private element(fields: Field[], range: Range): Statement | undefined {
