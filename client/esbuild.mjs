@@ -8,10 +8,7 @@ import { fileURLToPath } from 'node:url';
 
 const client = dirname(fileURLToPath(import.meta.url));
 const root = join(client, '..');
-const realServerEntry = join(root, 'server/src/lsp/entry.ts');
-// Only for developing the editor harness without the real server; never packaged for use.
-const standInServerEntry = join(client, 'src/dev/stand-in-server.ts');
-const useStandIn = process.env.PNLINT_STAND_IN_SERVER === '1';
+const serverEntry = join(root, 'server/src/lsp/entry.ts');
 
 // VS Code 1.82, the oldest release this extension supports, runs extensions on Node 18.
 const common = {
@@ -32,13 +29,13 @@ await build({
   external: ['vscode'],
 });
 
-if (!useStandIn && !existsSync(realServerEntry)) {
-  console.error(`esbuild.mjs: the language server entry ${realServerEntry} does not exist yet.`);
+if (!existsSync(serverEntry)) {
+  console.error(`esbuild.mjs: the language server entry ${serverEntry} is missing.`);
   process.exit(1);
 }
 await build({
   ...common,
-  entryPoints: [useStandIn ? standInServerEntry : realServerEntry],
+  entryPoints: [serverEntry],
   outfile: join(client, 'out/server.js'),
   // The server is ESM in the repository; in a CommonJS bundle `import.meta` must
   // be rebuilt from the bundle's own location (it finds its rule pages from it).
@@ -50,7 +47,6 @@ await build({
   },
   alias: { '@pnlint/grammar': join(root, 'grammar/src/index.ts') },
 });
-if (useStandIn) console.warn('esbuild.mjs: bundled the DEVELOPMENT stand-in server, not the real one.');
 
 // Rule pages: the server links each diagnostic to <extension>/docs/rules/<id>.md.
 const rulesFrom = join(root, 'server/docs/rules');

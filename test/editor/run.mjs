@@ -7,11 +7,11 @@
 // the end, on failure too. Exit code 0 only when every check passed.
 //   --update-media  also copy the squiggle, hover and quick-fix pictures to client/media/
 //   --keep          keep the run folder under .cache/editor/runs/ for inspection
-import { build } from 'esbuild';
-import { copyFileSync, cpSync, mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { copyFileSync, cpSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { chromium } from 'playwright-core';
 import {
+  bundleSuite,
   cacheFolder,
   chromiumPath,
   endProcessGroup,
@@ -33,6 +33,8 @@ import { driveWorkbench } from './workbench.mjs';
 const RUN_BUDGET_MILLISECONDS = 20 * 60_000;
 /** The extension-host suite's own budget (it runs in about 10 s here). */
 const SUITE_BUDGET_MILLISECONDS = 5 * 60_000;
+/** Workbench log lines that say nothing about the suite (kept in suite.log, not printed); the gallery is unreachable here. */
+const WORKBENCH_NOISE = /ENOTFOUND|AccountPolicyGate|AgentHost|Creating a socket|connection token|reconnection-grace-time|builtin extensions cache|Service Worker|\[lifecycle\]/;
 const EXTENSION_FOLDER_NAME = 'pnlint.pnlint-0.1.0';
 
 const options = new Set(process.argv.slice(2));
@@ -55,19 +57,12 @@ const overallTimer = setTimeout(() => {
   process.exit(1);
 }, RUN_BUDGET_MILLISECONDS);
 
-async function bundleSuite(outputFolder) {
-  const suiteFolder = join(repositoryRoot, 'test/editor/suite');
-  const entryPoints = readdirSync(suiteFolder).filter((name) => name.endsWith('.ts')).map((name) => join(suiteFolder, name));
-  await build({
-    entryPoints,
-    outdir: outputFolder,
-    bundle: true,
-    platform: 'node',
-    format: 'cjs',
-    target: 'node18',
-    external: ['vscode', 'mocha'],
-    logLevel: 'warning',
-  });
+/** console.log's formatting of `%s`/`%d` placeholders, enough for Mocha's spec reporter. */
+function formatConsoleArguments(values) {
+  if (values.length === 0) return '';
+  const [first, ...rest] = values.map((value) => (typeof value === 'string' ? value : JSON.stringify(value) ?? String(value)));
+  const text = first.replace(/%[sdifoOj%]/g, (placeholder) => (placeholder === '%%' ? '%' : rest.length > 0 ? rest.shift() : placeholder));
+  return [text, ...rest].join(' ');
 }
 
 function remoteUri(server, path) {
@@ -82,11 +77,11 @@ async function runExtensionHostSuite(context, server, { extensionPath, suitePath
   const exitCode = new Promise((resolve) => {
     settle = resolve;
   });
-  // The workbench calls it with the level ('info', 'error') and the message.
+  // The workbench calls it with the level ('info', 'error') and console.log's arguments.
   await page.exposeFunction('codeAutomationLog', (level, ...message) => {
-    const text = message.length > 0 ? `${message.map(String).join(' ')}${level === 'error' ? ' [error]' : ''}` : String(level);
+    const text = `${formatConsoleArguments(message.flat())}${level === 'error' ? ' [error]' : ''}`;
     lines.push(text);
-    process.stdout.write(`  | ${text}\n`);
+    if (!WORKBENCH_NOISE.test(text)) process.stdout.write(`  | ${text}\n`);
   });
   await page.exposeFunction('codeAutomationExit', (code) => settle(Number(code)));
   const payload = JSON.stringify([

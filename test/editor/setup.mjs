@@ -3,7 +3,8 @@
 // code-server process group that is always ended. See
 // ../../../shared/design/editor-testing.md for why each step is the way it is.
 import { execFileSync, spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { build } from 'esbuild';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -232,4 +233,26 @@ export function packageVsixIfMissing() {
   if (existsSync(vsixPath)) return;
   log('packaging the extension (npm run package -w client)');
   execFileSync('npm', ['run', 'package', '-w', 'client'], { cwd: repositoryRoot, stdio: 'inherit', timeout: 300_000 });
+}
+
+/**
+ * Bundles suite/*.ts into `outputFolder` as CommonJS (VS Code loads test
+ * runners with require). Mocha stays outside the bundle and resolves from the
+ * repository's node_modules, so `outputFolder` must lie inside the repository.
+ */
+export async function bundleSuite(outputFolder) {
+  const suiteFolder = join(repositoryRoot, 'test/editor/suite');
+  const entryPoints = readdirSync(suiteFolder).filter((name) => name.endsWith('.ts')).map((name) => join(suiteFolder, name));
+  await build({
+    entryPoints,
+    outdir: outputFolder,
+    bundle: true,
+    platform: 'node',
+    format: 'cjs',
+    target: 'node18',
+    external: ['vscode', 'mocha'],
+    logLevel: 'warning',
+  });
+  // The repository's package.json says "type": "module"; these files are CommonJS.
+  writeFileSync(join(outputFolder, 'package.json'), '{ "type": "commonjs" }\n');
 }
