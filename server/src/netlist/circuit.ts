@@ -93,6 +93,7 @@ export interface CurrentSwitch extends ElementBase { type: 'W'; model: Model; co
 export interface Diode extends ElementBase {
   type: 'D';
   model: Model;
+  /** Area factor, with `m=` (devices in parallel) folded in: at DC, m diodes in parallel are one diode of m times the area. */
   area: number;
   off: boolean;
   /** Instance temperature in °C, when given (`temp=`, or `dtemp=` added to the circuit's). */

@@ -460,6 +460,10 @@ function readDiode(statement: ElementStatement, context: ElementContext): Elemen
   const found = findModel(context, statement, positional[2]);
   if ('reason' in found) return unmodeled(context, statement, nodes, found.reason);
   const areaField = positional[3]?.kind === 'word' && lower(positional[3]) === 'off' ? undefined : positional[3];
+  if (areaField) {
+    // SPICE3 takes a bare area after the model; ngspice 39 stops on it ("could not find a valid modelname", checked by running it).
+    context.sink.warning(context.uri, areaField.range, `ngspice does not accept a bare area on a diode line; write area=${fieldText(areaField)}`);
+  }
   const area = areaOf(context, areaField, assigns);
   if (area === undefined) return undefined;
   const temperatureField = assigns.get('temp')?.value;
