@@ -30,6 +30,18 @@ export interface SpiceNumber {
 
 const NUMBER_PREFIX = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?/;
 
+/** Powers of ten of the decimal scale factors, so that `10u` is exactly 1e-5 rather than 10 × 1e-6. */
+const DECIMAL_EXPONENTS: Readonly<Record<string, number>> = { t: 12, g: 9, meg: 6, k: 3, m: -3, u: -6, n: -9, p: -12, f: -15 };
+
+function scaled(mantissa: string, scale: string): number {
+  if (scale === '') return Number(mantissa);
+  const exponent = DECIMAL_EXPONENTS[scale];
+  if (exponent === undefined) return Number(mantissa) * SCALE_FACTORS[scale]!;
+  // Shift the decimal exponent in the text: one correctly rounded conversion, not two.
+  const [digits, written = '0'] = mantissa.toLowerCase().split('e');
+  return Number(`${digits}e${Number(written) + exponent}`);
+}
+
 /** Reads `text` as a SPICE number; undefined when it does not start with one. */
 export function readSpiceNumber(text: string): SpiceNumber | undefined {
   const match = NUMBER_PREFIX.exec(text);
@@ -42,8 +54,7 @@ export function readSpiceNumber(text: string): SpiceNumber | undefined {
   else if (lower.startsWith('mil')) scale = rest.slice(0, 3);
   else if (rest.length > 0 && 'tgkmunpf'.includes(lower[0]!)) scale = rest.slice(0, 1);
   rest = rest.slice(scale.length);
-  const factor = scale ? SCALE_FACTORS[scale.toLowerCase()]! : 1;
-  return { value: Number(mantissa) * factor, mantissa, scale, ignored: rest };
+  return { value: scaled(mantissa, scale.toLowerCase()), mantissa, scale, ignored: rest };
 }
 
 /**
