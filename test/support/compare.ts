@@ -97,17 +97,27 @@ export interface KirchhoffResidual {
 
 export interface KirchhoffCheck {
   residuals: KirchhoffResidual[];
-  /** Nodes not checked because an element on them has terminal currents that one branch current cannot describe (transistors). */
+  /** Nodes not checked because an element on them has no current in pnlint's result (e.g. a transistor without terminal currents). */
   skipped: { node: string; because: string }[];
 }
 
-/** Terminal currents of a two-terminal-port element: `current` in at its first node, out at its second. */
-function portCurrents(element: Element, point: OperatingPoint): Map<string, number> | undefined {
+/**
+ * The current into `element` at each of its nodes: pnlint's per-terminal
+ * currents when it reports them (transistors), else, for an element with one
+ * port, its branch current in at its first node and out at its second.
+ */
+function terminalCurrents(element: Element, point: OperatingPoint): Map<string, number> | undefined {
+  const currents = new Map<string, number>();
+  const add = (node: string, value: number) => currents.set(node, (currents.get(node) ?? 0) + value);
+  const terminals = point.terminals?.[element.name];
+  if (terminals && terminals.length === element.nodes.length) {
+    terminals.forEach((current, index) => add(element.nodes[index], current));
+    return currents;
+  }
+  if (!PORT_ELEMENTS.has(element.type)) return undefined;
   const current =
     element.type === 'C' ? (point.branches[element.name] ?? 0) : (point.branches[element.name] ?? point.diodes[element.name]?.current);
   if (current === undefined) return undefined;
-  const currents = new Map<string, number>();
-  const add = (node: string, value: number) => currents.set(node, (currents.get(node) ?? 0) + value);
   add(element.nodes[0], current);
   add(element.nodes[1], -current);
   // The controlling pair of E, G and S draws no current.
@@ -117,21 +127,21 @@ function portCurrents(element: Element, point: OperatingPoint): Map<string, numb
 const PORT_ELEMENTS = new Set(['R', 'C', 'L', 'V', 'I', 'E', 'F', 'G', 'H', 'S', 'W', 'D']);
 
 /**
- * Kirchhoff's current law on pnlint's branch currents: at every node the
- * currents leaving through its elements sum to about zero. Ground is not
- * checked (it is the sum of all the others). Nodes that touch a transistor are
- * skipped, since OperatingPoint gives one current per element.
+ * Kirchhoff's current law on pnlint's branch and terminal currents: at every
+ * node the currents leaving through its elements sum to about zero. Ground is
+ * not checked (it is the sum of all the others). A node touching an element
+ * whose currents pnlint does not report is skipped, and listed as skipped.
  */
 export function checkKirchhoff(circuit: Circuit, point: OperatingPoint): KirchhoffCheck {
   const sums = new Map<string, { sum: number; largest: number }>();
   const unknown = new Map<string, string>();
   for (const element of circuit.elements) {
     if (element.type === 'K') continue; // no current of its own
-    const currents = PORT_ELEMENTS.has(element.type) ? portCurrents(element, point) : undefined;
+    const currents = terminalCurrents(element, point);
     if (!currents) {
       const because =
         element.type === 'Q' || element.type === 'M'
-          ? `${element.name} is a transistor: one branch current does not give its terminal currents`
+          ? `${element.name} is a transistor and pnlint's result has no terminal currents for it`
           : `${element.name} has no branch current in pnlint's result`;
       for (const node of element.nodes) if (!unknown.has(node)) unknown.set(node, because);
       continue;
@@ -157,4 +167,41 @@ export function checkKirchhoff(circuit: Circuit, point: OperatingPoint): Kirchho
     if (node !== GROUND && !sums.has(node)) check.skipped.push({ node, because });
   }
   return check;
+}
+
+export interface DiodeAmmeter {
+  diode: string;
+  ammeter: string;
+  /** +1 when the ammeter's current is the diode's anode-to-cathode current, -1 when it is the opposite. */
+  sign: 1 | -1;
+}
+
+/**
+ * Pairs each diode with the 0 V ammeter source (named `VAM…`) that the
+ * reference netlists put in series with it: the two share a node on which
+ * nothing else sits.
+ */
+export function diodeAmmeters(circuit: Circuit): DiodeAmmeter[] {
+  const elementsOnNode = new Map<string, Element[]>();
+  for (const element of circuit.elements) {
+    for (const node of new Set(element.nodes)) elementsOnNode.set(node, [...(elementsOnNode.get(node) ?? []), element]);
+  }
+  const pairs: DiodeAmmeter[] = [];
+  for (const diode of circuit.elements) {
+    if (diode.type !== 'D') continue;
+    const [anode, cathode] = diode.nodes;
+    for (const node of [anode, cathode]) {
+      if (node === GROUND) continue;
+      const others = (elementsOnNode.get(node) ?? []).filter((element) => element !== diode);
+      const ammeter = others[0];
+      const localName = ammeter?.name.split('.').pop() ?? '';
+      if (others.length !== 1 || ammeter.type !== 'V' || ammeter.dc !== 0 || !/^vam/i.test(localName)) continue;
+      // A source's current flows from its first node through it to its second (SPICE's convention).
+      const intoAnode = node === anode && ammeter.nodes[1] === anode;
+      const outOfCathode = node === cathode && ammeter.nodes[0] === cathode;
+      pairs.push({ diode: diode.name, ammeter: ammeter.name, sign: intoAnode || outOfCathode ? 1 : -1 });
+      break;
+    }
+  }
+  return pairs;
 }
