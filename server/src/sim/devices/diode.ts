@@ -129,7 +129,8 @@ export class DiodeDevice implements Device {
     this.seriesConductance = p.seriesResistance > 0 ? area / p.seriesResistance : 0;
     this.forwardKneeCurrent = p.forwardKneeCurrent * area;
     this.gmin = conditions.gmin;
-    this.knee = Number.isFinite(p.breakdownVoltage) ? this.breakdownKnee(p.breakdownVoltage, p.breakdownCurrent * area, vt, conditions.relativeTolerance) : Infinity;
+    // IBV is not scaled by area at level 1 (ngspice 39: an area-2 diode still carries IBV at −BV).
+    this.knee = Number.isFinite(p.breakdownVoltage) ? this.breakdownKnee(p.breakdownVoltage, p.breakdownCurrent, vt, conditions.relativeTolerance) : Infinity;
   }
 
   /** ngspice's placement of the breakdown knee: the shifted voltage at which the current at −BV equals IBV. */
