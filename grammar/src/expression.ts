@@ -1,6 +1,7 @@
 // Expressions inside `{…}` and `'…'`, in `.param` values, `.func` bodies and `.if`
 // conditions. Precedence, loosest first: `?:`, `||`, `&&`, comparisons, `+ -`,
-// `* / %`, unary `- + !`, power `^`/`**` (right-associative). Numbers take SPICE
+// `* / %`, unary `- + !`, power `^`/`**` (chained from the left, as ngspice 39 does:
+// 2^3^2 = 64). Numbers take SPICE
 // scale factors (`2*1k`, `1meg`), read by the one value reader.
 
 import { createToken, EmbeddedActionsParser, EOF, Lexer, type IToken, type TokenType } from 'chevrotain';
@@ -136,13 +137,14 @@ class ExpressionParser extends EmbeddedActionsParser {
     ]);
   });
 
-  // Right-associative, and binds tighter than unary minus: -2^2 = -(2^2), 2^-1 = 2^(-1).
+  // Binds tighter than unary minus, and chains from the left as ngspice 39 evaluates it:
+  // -2^2 = -(2^2) = -4, 2^3^2 = (2^3)^2 = 64, 2^-1 = 0.5.
   power = this.RULE('power', (): Expr => {
-    const base = this.SUBRULE(this.primary);
-    let result = base;
-    this.OPTION(() => {
+    let result = this.SUBRULE(this.primary);
+    this.MANY(() => {
       const op = this.CONSUME(Power);
-      const exponent = this.SUBRULE(this.unary);
+      const exponent = this.SUBRULE(this.exponent);
+      const base = result;
       result = this.ACTION(() => ({
         kind: 'binary' as const,
         op: op.image as '^' | '**',
@@ -152,6 +154,25 @@ class ExpressionParser extends EmbeddedActionsParser {
       }));
     });
     return result;
+  });
+
+  /** The right side of `^`: a primary, perhaps signed (`2^-1`). */
+  exponent = this.RULE('exponent', (): Expr => {
+    return this.OR([
+      {
+        ALT: () => {
+          const op = this.OR1([{ ALT: () => this.CONSUME(Plus) }, { ALT: () => this.CONSUME(Not) }]);
+          const operand = this.SUBRULE(this.exponent);
+          return this.ACTION(() => ({
+            kind: 'unary' as const,
+            op: op.image as '-' | '+' | '!',
+            operand,
+            range: { start: this.tokenRange(op).start, end: operand.range.end },
+          }));
+        },
+      },
+      { ALT: () => this.SUBRULE(this.primary) },
+    ]);
   });
 
   primary = this.RULE('primary', (): Expr => {

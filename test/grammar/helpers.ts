@@ -1,0 +1,71 @@
+// Test helpers: where a range lands in the text, computed independently of the parser.
+import { expect } from 'vitest';
+import type { Position, Range, Statement, ParseResult } from '@pnlint/grammar';
+
+/** Line and UTF-16 column of `offset`, counting `\r\n`, `\n` and `\r` as line ends. */
+export function lineColumn(text: string, offset: number): { line: number; column: number } {
+  let line = 0;
+  let lineStart = 0;
+  for (let index = 0; index < offset; index++) {
+    const char = text[index];
+    if (char === '\r' && text[index + 1] === '\n') continue;
+    if (char === '\n' || char === '\r') {
+      line++;
+      lineStart = index + 1;
+    }
+  }
+  return { line, column: offset - lineStart };
+}
+
+export function expectPositionConsistent(text: string, position: Position): void {
+  expect(position.offset).toBeGreaterThanOrEqual(0);
+  expect(position.offset).toBeLessThanOrEqual(text.length);
+  expect({ line: position.line, column: position.column }).toEqual(lineColumn(text, position.offset));
+}
+
+/** The text a range covers, after checking that its line/column agree with its offsets. */
+export function covered(text: string, range: Range): string {
+  expectPositionConsistent(text, range.start);
+  expectPositionConsistent(text, range.end);
+  expect(range.end.offset).toBeGreaterThanOrEqual(range.start.offset);
+  return text.slice(range.start.offset, range.end.offset);
+}
+
+/** Every statement of a result, nested bodies included, in source order. */
+export function allStatements(statements: Statement[]): Statement[] {
+  const all: Statement[] = [];
+  const visit = (list: Statement[]): void => {
+    for (const statement of list) {
+      all.push(statement);
+      if (statement.kind === 'subckt' || statement.kind === 'libSection') visit(statement.body);
+      if (statement.kind === 'if') for (const branch of statement.branches) visit(branch.body);
+    }
+  };
+  visit(statements);
+  return all;
+}
+
+/** Every range object reachable from the result. */
+export function allRanges(result: ParseResult): Range[] {
+  const ranges: Range[] = [];
+  const visit = (value: unknown): void => {
+    if (!value || typeof value !== 'object') return;
+    if (Array.isArray(value)) {
+      for (const item of value) visit(item);
+      return;
+    }
+    const record = value as Record<string, unknown>;
+    if (isRange(record)) {
+      ranges.push(record as unknown as Range);
+      return;
+    }
+    for (const key of Object.keys(record)) visit(record[key]);
+  };
+  visit(result);
+  return ranges;
+}
+
+function isRange(value: Record<string, unknown>): boolean {
+  const start = value.start as Record<string, unknown> | undefined;
+  return !!start && typeof start === 'object' && typeof start.offset === 'number' && typeof value.end === 'object';
+}
