@@ -7,6 +7,9 @@ import { join } from 'node:path';
 const LED_RULE = 'led-current-unlimited';
 /** Longest wait for one thing to appear in the workbench (2 shared cores; common practice, no source). */
 const STEP_WAIT_MILLISECONDS = 60_000;
+/** Size of the editor pictures kept for the README (pixels). */
+const README_PICTURE_WIDTH = 860;
+const README_PICTURE_HEIGHT = 420;
 
 /** The editor's text as shown (Monaco renders spaces as non-breaking spaces). */
 async function editorText(page) {
@@ -31,9 +34,16 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
   const page = await context.newPage();
   page.setDefaultTimeout(STEP_WAIT_MILLISECONDS);
   let stepNumber = 0;
-  const shoot = async (name, target) => {
+  const shoot = async (name, region) => {
     const file = join(artifacts, name);
-    await (target ?? page).screenshot({ path: file }).catch((error) => failures.push(`screenshot ${name}: ${error.message}`));
+    try {
+      // A region: the top of the editor part only, small enough for the README.
+      const box = region ? await region.boundingBox() : null;
+      const clip = box ? { x: box.x, y: box.y, width: Math.min(box.width, README_PICTURE_WIDTH), height: Math.min(box.height, README_PICTURE_HEIGHT) } : undefined;
+      await page.screenshot({ path: file, clip });
+    } catch (error) {
+      failures.push(`screenshot ${name}: ${error instanceof Error ? error.message : String(error)}`);
+    }
   };
   /** Runs one step; a failed step stops the steps that depend on it. */
   const step = async (title, body) => {
