@@ -37,7 +37,7 @@ export const zenerUnderbiased: Rule = {
         ID,
         'warning',
         `Zener ${name} carries ${shown} ${atCorner(worst.at.plan)}, below its minimum regulating current ${describeRating('izk', knee)}: ` +
-          `its voltage is not regulated there (${formatQuantity(-worst.at.point.voltage, 'V')} across it).`,
+          `below its knee a real part no longer holds its zener voltage (the model gives ${formatQuantity(-worst.at.point.voltage, 'V')} there).`,
         diode.element.location,
         { element: name, related: [...cornerSources(context, worst.at.plan), ...seriesResistorsOf(context, diode)] },
       );
