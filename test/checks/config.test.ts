@@ -1,5 +1,8 @@
 // pnlint.json: what it holds (product.md: ratings per model or instance, supplies, settings
 // overrides, ignores), and a diagnostic at the key for every mistake.
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { Ajv } from 'ajv';
 import { describe, expect, it } from 'vitest';
 import { effectiveSettings, readWorkspaceConfig } from '../../server/src/config.js';
 import { DEFAULT_SETTINGS } from '../../server/src/settings.js';
@@ -63,5 +66,41 @@ describe('pnlint.json', () => {
     expect(findings.every((finding) => finding.rule === 'directive')).toBe(true);
     // "vrm" is on line 4 (0-based 3) of the pretty-printed text.
     expect(findings[0]!.location.range.start.line).toBe(3);
+  });
+});
+
+
+describe('the shipped JSON schema agrees with the reader', () => {
+  const schema = JSON.parse(readFileSync(fileURLToPath(new URL('../../server/schemas/pnlint.schema.json', import.meta.url)), 'utf8'));
+  const validate = new Ajv({ allErrors: true, strict: false }).compile(schema);
+  const good = [
+    { ratings: { DRED: { kind: 'led', if: '20m', vrrm: 5, pd: '75mW' }, R7: { p: 0.25, tol: '5%' } } },
+    { supplies: { V1: { min: 4.75, max: 5.25 }, V2: { tol: 0.1 } } },
+    { settings: { preferredSeries: 'E96', severities: { 'reversed-diode': 'off' }, temperatures: [-20, 85] } },
+    { ignore: ['shared-led-resistor', { rule: 'reversed-diode', elements: ['D3'], reason: 'on purpose' }] },
+  ];
+  const bad = [
+    { ratings: { D1: { vrm: 5 } } },
+    { ratings: { D1: { kind: 'laser' } } },
+    { supplies: { V1: { tol: '5%', max: 5 } } },
+    { settings: { preferredSeries: 'E7' } },
+    { ignore: ['no-such-rule'] },
+    { extra: true },
+  ];
+  it('accepts what the reader accepts', () => {
+    for (const value of good) {
+      expect(read(value).findings, JSON.stringify(value)).toEqual([]);
+      expect(validate(value), JSON.stringify(validate.errors)).toBe(true);
+    }
+  });
+  it('rejects what the reader rejects', () => {
+    for (const value of bad) {
+      expect(read(value).findings.length, JSON.stringify(value)).toBeGreaterThan(0);
+      expect(validate(value), JSON.stringify(value)).toBe(false);
+    }
+  });
+  it('lists every rule id the project knows', async () => {
+    const { RULE_IDS } = await import('../../server/src/rule-ids.js');
+    expect(new Set(schema.properties.ignore.items.anyOf[0].enum)).toEqual(new Set(RULE_IDS));
   });
 });
