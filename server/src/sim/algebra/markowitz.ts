@@ -32,7 +32,7 @@ export interface EliminationFactors {
   upperValue: Float64Array;
 }
 
-/** Why a column has no pivot: no entry left at all, or entries that are all numerical zeros. */
+/** Why a column has no pivot: no entry left at all, entries that are all numerical zeros, or a NaN or infinity (found before elimination). */
 export type SingularReason = 'structural' | 'numerical' | 'not-finite';
 
 export type EliminationResult =
@@ -295,6 +295,11 @@ export function eliminateWithMarkowitz(
   const lowerValue = new GrowingFloat64(entries);
   const upperColumn = new GrowingInt32(entries);
   const upperValue = new GrowingFloat64(entries);
+  // During a step's update: each pivot-column row's index into lowerRow, or NONE; and, per
+  // such row, the stamp of the last column update that found its element (no fill needed).
+  const lowerIndexOfRow = new Int32Array(n).fill(NONE);
+  const updatedAt = new Int32Array(n);
+  let updateStamp = 0;
 
   // The search's best candidate so far.
   let bestCost = Infinity;
@@ -400,19 +405,43 @@ export function eliminateWithMarkowitz(
     const upperEnd = upperColumn.length;
 
     // Schur complement update: a[i][j] −= l[i]·u[j], adding fill where (i, j) was empty.
+    // Per column, either one walk down the column picking out the pivot column's rows
+    // (cost ~ its length), or each (i, j) looked up along its shorter line, whichever is
+    // cheaper: the walk suits dense fill, the look-ups a long column touched by few rows.
+    for (let l = lowerFirst; l < lowerEnd; l++) lowerIndexOfRow[lowerRow.data[l]] = l;
     for (let u = upperFirst; u < upperEnd; u++) {
       const column = upperColumn.data[u];
       const upper = upperValue.data[u];
-      for (let l = lowerFirst; l < lowerEnd; l++) {
+      const length = active.columnLength[column];
+      let lookupCost = 0;
+      for (let l = lowerFirst; l < lowerEnd && lookupCost <= length; l++) {
         const row = lowerRow.data[l];
-        const update = lowerValue.data[l] * upper;
-        const element = active.find(row, column);
-        if (element !== NONE) active.elementValue[element] -= update;
-        else active.add(row, column, -update);
+        lookupCost += row === column ? 1 : Math.min(active.rowLength[row], length);
+      }
+      if (lookupCost <= length) {
+        for (let l = lowerFirst; l < lowerEnd; l++) {
+          const row = lowerRow.data[l];
+          const update = lowerValue.data[l] * upper;
+          const element = active.find(row, column);
+          if (element !== NONE) active.elementValue[element] -= update;
+          else active.add(row, column, -update);
+        }
+      } else {
+        updateStamp++;
+        for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
+          const l = lowerIndexOfRow[active.elementRow[e]];
+          if (l === NONE) continue;
+          active.elementValue[e] -= lowerValue.data[l] * upper;
+          updatedAt[l - lowerFirst] = updateStamp;
+        }
+        for (let l = lowerFirst; l < lowerEnd; l++) {
+          if (updatedAt[l - lowerFirst] !== updateStamp) active.add(lowerRow.data[l], column, -lowerValue.data[l] * upper);
+        }
       }
       columnMaximumStale[column] = 1;
       columnBuckets.link(column, active.columnLength[column]);
     }
+    for (let l = lowerFirst; l < lowerEnd; l++) lowerIndexOfRow[lowerRow.data[l]] = NONE;
     for (let l = lowerFirst; l < lowerEnd; l++) {
       const row = lowerRow.data[l];
       rowBuckets.link(row, active.rowLength[row]);
