@@ -38,6 +38,17 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
   const close = (kind: Block['kind'], marker: BlockMarker): OpenBlock | undefined => {
     let depth = stack.length - 1;
     while (depth >= 0 && stack[depth]!.block.kind !== kind) depth--;
+    // `.ends outer` closes `outer` even when a subcircuit inside it was left open.
+    const name = marker.name?.text.toLowerCase();
+    if (kind === 'subckt' && name !== undefined) {
+      for (let at = stack.length - 1; at >= 0; at--) {
+        const block = stack[at]!.block;
+        if (block.kind === 'subckt' && block.name.text.toLowerCase() === name) {
+          depth = at;
+          break;
+        }
+      }
+    }
     if (depth < 0) return undefined;
     while (stack.length - 1 > depth) leaveOpen(stack.pop()!);
     const open = stack.pop()!;
