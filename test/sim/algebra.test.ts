@@ -332,6 +332,38 @@ describe('SparseLU on MNA structures with zero diagonals', () => {
     expect(lu.statistics.factorEntries).toBeLessThan(1.2 * matrix.entryCount);
   });
 
+  it('solves a resistor mesh (fill-in) and a star around one busy node like the dense reference', () => {
+    // A 12 × 12 mesh of 1 kΩ with a few 1 MΩ leaks to ground, fed at a corner: eliminating it creates fill.
+    const side = 12;
+    const mesh = new Mna(side * side, 1);
+    const node = (x: number, y: number) => 1 + x * side + y;
+    for (let x = 0; x < side; x++) {
+      for (let y = 0; y < side; y++) {
+        if (x + 1 < side) mesh.conductance(node(x, y), node(x + 1, y), 1e-3);
+        if (y + 1 < side) mesh.conductance(node(x, y), node(x, y + 1), 1e-3);
+        if ((3 * x + y) % 7 === 0) mesh.conductance(node(x, y), 0, 1e-6);
+      }
+    }
+    mesh.voltageSource(0, node(0, 0), 0, 3.3);
+    // One hub node with 300 leaves, each leaf to ground, the hub fed through 1 Ω by a 5 V source.
+    const leaves = 300;
+    const star = new Mna(leaves + 2, 1);
+    star.voltageSource(0, 1, 0, 5);
+    star.conductance(1, 2, 1);
+    for (let k = 0; k < leaves; k++) {
+      star.conductance(2, 3 + k, 1 / (100 + k));
+      star.conductance(3 + k, 0, 1e-3 * (1 + (k % 5)));
+    }
+    for (const circuit of [mesh, star]) {
+      const { matrix } = buildMatrix(circuit.size, circuit.entries);
+      const lu = new SparseLU(matrix);
+      expect(lu.factor()).toEqual({ ok: true });
+      const x = solveSparse(lu, circuit.rhs);
+      expect(backwardError(circuit.size, circuit.entries, x, circuit.rhs)).toBeLessThan(BACKWARD_ERROR_TOLERANCE);
+      expect(maxRelativeDifference(x, denseSolve(toDense(circuit.size, circuit.entries), circuit.rhs))).toBeLessThan(1e-9);
+    }
+  });
+
   it('refactors a ladder across Newton-like value changes with the same ordering, still exact', () => {
     const sections = 40;
     const first = ladder(sections, () => 1e-12);
