@@ -3,8 +3,11 @@
 // solve, in process) beside ngspice 39 (a child process) in the same run.
 // ngspice's figure is its wall-clock time minus its own start-and-quit time,
 // measured on a one-resistor circuit, so that both figures are solve work.
-// Median of several repetitions; heap measured after a forced GC when the
-// runner passes --expose-gc. Reported, not a timed test.
+// Median of several repetitions. Heap: measured in a fresh process per size,
+// after a forced GC. Reported, not a timed test.
+import { spawnSync } from 'node:child_process';
+import { availableParallelism, loadavg } from 'node:os';
+import { fileURLToPath } from 'node:url';
 import { resistorDiodeLadder } from '../support/ladder.mjs';
 import { hasNgspice, runNgspiceOperatingPoint } from '../support/ngspice-run.mjs';
 import { loadBuiltSolver } from '../support/pnlint-dist.mjs';
@@ -39,6 +42,45 @@ function ngspiceMilliseconds(text, repetitions) {
   return median(times);
 }
 
+const MEMORY_MODE = '--measure-heap';
+
+/**
+ * The heap that one elaborated, compiled and solved ladder holds, measured in a
+ * fresh Node process (with --expose-gc), so that nothing from the timing runs
+ * (or from V8 keeping an earlier iteration's values alive) blurs it.
+ * @param {number} sections
+ * @returns {{ used: number, held: number } | undefined}
+ */
+function measureHeapInFreshProcess(sections) {
+  const child = spawnSync(process.execPath, ['--expose-gc', fileURLToPath(import.meta.url), MEMORY_MODE, String(sections)], {
+    encoding: 'utf8',
+    timeout: 300_000,
+  });
+  try {
+    return JSON.parse(child.stdout);
+  } catch {
+    return undefined;
+  }
+}
+
+if (process.argv[2] === MEMORY_MODE) {
+  const sections = Number(process.argv[3]);
+  const built = await loadBuiltSolver();
+  if (!built.available || !globalThis.gc) process.exit(1);
+  const text = resistorDiodeLadder(sections);
+  const before = settleHeap();
+  // Kept reachable while the heap is read: what a language server holds per open file.
+  const circuit = built.elaborate(`/bench/ladder-${sections}.cir`, text);
+  const compiled = built.compile(circuit);
+  const result = built.solve(compiled);
+  const after = settleHeap();
+  console.log(JSON.stringify({ used: after / MEGABYTE, held: (after - before) / MEGABYTE, solved: [circuit, compiled, result].length === 3 && result.ok }));
+  process.exit(0);
+}
+
+// Other work on the machine inflates every figure: say how busy it was.
+console.log(`ladder: load average ${loadavg()[0].toFixed(1)} on ${availableParallelism()} cores at the start`);
+
 const ngspiceAvailable = hasNgspice();
 const startAndQuit = ngspiceAvailable ? ngspiceMilliseconds(EMPTY_CIRCUIT, 7) : undefined;
 if (startAndQuit !== undefined) {
@@ -50,6 +92,7 @@ if (startAndQuit !== undefined) {
 const solver = await loadBuiltSolver();
 if (!solver.available) console.log(`ladder: pnlint ${solver.reason}`);
 
+/** @type {Record<number, { used: number, held: number } | undefined>} heap after the solve, MB, by number of sections */
 const heapAfterSolve = {};
 for (const sections of SIZES) {
   const text = resistorDiodeLadder(sections);
@@ -57,45 +100,45 @@ for (const sections of SIZES) {
   const repetitions = REPETITIONS[sections];
 
   let pnlintMilliseconds;
-  let heapMegabytes;
-  let heapUsedMegabytes;
+  let phases = '';
   let note = '';
   if (solver.available) {
     // One warm-up run lets the JIT compile the hot paths, as it would in a long-lived language server.
     solver.solve(solver.compile(solver.elaborate(uri, text)));
-    const times = [];
+    const times = { total: [], elaborate: [], compile: [], solve: [] };
     for (let index = 0; index < repetitions; index++) {
-      const heapBefore = settleHeap();
       const started = performance.now();
       const circuit = solver.elaborate(uri, text);
-      const result = solver.solve(solver.compile(circuit));
-      times.push(performance.now() - started);
+      const elaborated = performance.now();
+      const compiled = solver.compile(circuit);
+      const compiledAt = performance.now();
+      const result = solver.solve(compiled);
+      const solved = performance.now();
+      times.total.push(solved - started);
+      times.elaborate.push(elaborated - started);
+      times.compile.push(compiledAt - elaborated);
+      times.solve.push(solved - compiledAt);
       if (!result.ok) note = ` (pnlint did not solve it: ${result.diagnostics.map((d) => d.message).join('; ')})`;
-      // Heap still held by the circuit and its solution, on top of what was there before.
-      const heapAfter = settleHeap();
-      heapMegabytes = (heapAfter - heapBefore) / MEGABYTE;
-      heapUsedMegabytes = heapAfter / MEGABYTE;
-      void circuit;
     }
-    pnlintMilliseconds = median(times);
-    heapAfterSolve[sections] = heapMegabytes;
+    pnlintMilliseconds = median(times.total);
+    phases = ` (elaborate ${median(times.elaborate).toFixed(1)}, compile ${median(times.compile).toFixed(1)}, solve ${median(times.solve).toFixed(1)})`;
+    heapAfterSolve[sections] = measureHeapInFreshProcess(sections);
   }
   const ngspiceSolve = startAndQuit !== undefined ? Math.max(0, ngspiceMilliseconds(text, repetitions) - startAndQuit) : undefined;
 
   const pnlintText = pnlintMilliseconds !== undefined ? `${pnlintMilliseconds.toFixed(1)} ms` : 'n/a';
   const ngspiceText = ngspiceSolve !== undefined ? `${ngspiceSolve.toFixed(1)} ms` : 'n/a';
   const ratio = pnlintMilliseconds !== undefined && ngspiceSolve ? (pnlintMilliseconds / ngspiceSolve).toFixed(2) : 'n/a';
-  const heap =
-    heapMegabytes !== undefined
-      ? `, heap used after solve ${heapUsedMegabytes.toFixed(1)} MB (${heapMegabytes.toFixed(1)} MB held by the circuit and its solution)`
-      : '';
-  console.log(`ladder-${sections}: pnlint ${pnlintText}, ngspice ${ngspiceText}, ratio ${ratio}${heap}${note}`);
+  const memory = heapAfterSolve[sections];
+  const heap = memory ? `, heap used after solve ${memory.used.toFixed(1)} MB (${memory.held.toFixed(1)} MB held by the circuit and its solution)` : '';
+  console.log(`ladder-${sections}: pnlint ${pnlintText}${phases}, ngspice ${ngspiceText}, ratio ${ratio}${heap}${note}`);
 }
 
-if (heapAfterSolve[2000] !== undefined && heapAfterSolve[20000] !== undefined) {
-  const growth = heapAfterSolve[20000] / heapAfterSolve[2000];
+if (heapAfterSolve[2000] && heapAfterSolve[20000]) {
+  const small = heapAfterSolve[2000].held;
+  const large = heapAfterSolve[20000].held;
   console.log(
-    `ladder-memory: heap held after solve ${heapAfterSolve[2000].toFixed(1)} MB at 2,000 sections, ${heapAfterSolve[20000].toFixed(1)} MB at 20,000: x${growth.toFixed(1)} for x10 sections (linear is about x10)${globalThis.gc ? '' : ' (no --expose-gc: figures are noisy)'}`,
+    `ladder-memory: heap held by circuit and solution ${small.toFixed(1)} MB at 2,000 sections, ${large.toFixed(1)} MB at 20,000: x${(large / small).toFixed(1)} for x10 sections (linear is about x10)`,
   );
 } else {
   console.log('ladder-memory: not available yet (needs pnlint\'s solver)');
