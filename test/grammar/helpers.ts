@@ -2,19 +2,23 @@
 import { expect } from 'vitest';
 import type { Position, Range, Statement, ParseResult } from '@pnlint/grammar';
 
+let cachedText: string | undefined;
+let cachedStarts: number[] = [];
+
 /** Line and UTF-16 column of `offset`, counting `\r\n`, `\n` and `\r` as line ends. */
 export function lineColumn(text: string, offset: number): { line: number; column: number } {
-  let line = 0;
-  let lineStart = 0;
-  for (let index = 0; index < offset; index++) {
-    const char = text[index];
-    if (char === '\r' && text[index + 1] === '\n') continue;
-    if (char === '\n' || char === '\r') {
-      line++;
-      lineStart = index + 1;
+  if (text !== cachedText) {
+    cachedText = text;
+    cachedStarts = [0];
+    for (let index = 0; index < text.length; index++) {
+      const char = text[index];
+      if (char === '\r' && text[index + 1] === '\n') continue;
+      if (char === '\n' || char === '\r') cachedStarts.push(index + 1);
     }
   }
-  return { line, column: offset - lineStart };
+  let line = 0;
+  while (line + 1 < cachedStarts.length && cachedStarts[line + 1]! <= offset) line++;
+  return { line, column: offset - cachedStarts[line]! };
 }
 
 export function expectPositionConsistent(text: string, position: Position): void {
