@@ -211,65 +211,86 @@ export class SparseLU {
   /** Turns the elimination's factors into the static, step-ordered structure that refactor() and solve() use. */
   private keep(factors: EliminationFactors): void {
     const n = this.size;
-    const structure = this.structure!;
-    const stepOfRow = new Int32Array(n);
-    const stepOfColumn = new Int32Array(n);
-    for (let k = 0; k < n; k++) {
-      stepOfRow[factors.pivotRow[k]] = k;
-      stepOfColumn[factors.pivotColumn[k]] = k;
-    }
+    const stepOfRow = inversePermutation(factors.pivotRow);
+    const stepOfColumn = inversePermutation(factors.pivotColumn);
     this.rowAtStep = factors.pivotRow;
     this.columnAtStep = factors.pivotColumn;
     this.diagonal.set(factors.pivotValue);
 
-    // P·A·Q by columns, pointing back at the matrix's slots.
-    const entries = structure.row.length;
-    const permutedStart = new Int32Array(n + 1);
-    const permutedRow = new Int32Array(entries);
-    const permutedSlot = new Int32Array(entries);
-    let at = 0;
-    for (let k = 0; k < n; k++) {
-      permutedStart[k] = at;
-      const column = factors.pivotColumn[k];
-      for (let e = structure.columnStart[column], end = structure.columnStart[column + 1]; e < end; e++) {
-        permutedRow[at] = stepOfRow[structure.row[e]];
-        permutedSlot[at] = structure.slot[e];
-        at++;
-      }
-    }
-    permutedStart[n] = at;
-    this.permutedStart = permutedStart;
-    this.permutedRow = permutedRow;
-    this.permutedSlot = permutedSlot;
+    const permuted = permuteColumns(this.structure!, factors.pivotColumn, stepOfRow);
+    this.permutedStart = permuted.columnStart;
+    this.permutedRow = permuted.row;
+    this.permutedSlot = permuted.slot;
 
     // L keeps the elimination's columns; only the row numbers change to steps.
-    const lowerRow = new Int32Array(factors.lowerRow.length);
-    for (let e = 0; e < lowerRow.length; e++) lowerRow[e] = stepOfRow[factors.lowerRow[e]];
     this.lowerStart = factors.lowerStart;
-    this.lowerRow = lowerRow;
+    this.lowerRow = renumber(factors.lowerRow, stepOfRow);
     this.lowerValue = factors.lowerValue;
 
-    // U came by rows; transpose it into columns. Walking the rows in step order leaves each column's rows ascending.
-    const upperCount = factors.upperColumn.length;
-    const upperStart = new Int32Array(n + 1);
-    for (let e = 0; e < upperCount; e++) upperStart[stepOfColumn[factors.upperColumn[e]] + 1]++;
-    for (let k = 0; k < n; k++) upperStart[k + 1] += upperStart[k];
-    const next = upperStart.slice(0, n);
-    const upperRow = new Int32Array(upperCount);
-    const upperValue = new Float64Array(upperCount);
-    for (let k = 0; k < n; k++) {
-      for (let e = factors.upperStart[k], end = factors.upperStart[k + 1]; e < end; e++) {
-        const column = stepOfColumn[factors.upperColumn[e]];
-        const place = next[column]++;
-        upperRow[place] = k;
-        upperValue[place] = factors.upperValue[e];
-      }
-    }
-    this.upperStart = upperStart;
-    this.upperRow = upperRow;
-    this.upperValue = upperValue;
-    this.counters.factorEntries = lowerRow.length + upperCount + n;
+    const upper = transposeUpper(factors.upperStart, renumber(factors.upperColumn, stepOfColumn), factors.upperValue);
+    this.upperStart = upper.start;
+    this.upperRow = upper.row;
+    this.upperValue = upper.value;
+    this.counters.factorEntries = this.lowerRow.length + this.upperRow.length + n;
   }
+}
+
+// Small single-purpose loops, kept apart so that each is compiled on its own.
+
+function inversePermutation(order: Int32Array): Int32Array {
+  const inverse = new Int32Array(order.length);
+  for (let k = 0; k < order.length; k++) inverse[order[k]] = k;
+  return inverse;
+}
+
+function renumber(indices: Int32Array, newNumber: Int32Array): Int32Array {
+  const renumbered = new Int32Array(indices.length);
+  for (let e = 0; e < indices.length; e++) renumbered[e] = newNumber[indices[e]];
+  return renumbered;
+}
+
+/** P·A·Q by columns, rows in step order, each entry pointing back at its slot in the matrix's values. */
+function permuteColumns(structure: ColumnStructure, columnAtStep: Int32Array, stepOfRow: Int32Array): ColumnStructure {
+  const n = structure.size;
+  const { columnStart, row, slot } = structure;
+  const permutedStart = new Int32Array(n + 1);
+  const permutedRow = new Int32Array(row.length);
+  const permutedSlot = new Int32Array(row.length);
+  let at = 0;
+  for (let k = 0; k < n; k++) {
+    permutedStart[k] = at;
+    const column = columnAtStep[k];
+    for (let e = columnStart[column], end = columnStart[column + 1]; e < end; e++) {
+      permutedRow[at] = stepOfRow[row[e]];
+      permutedSlot[at] = slot[e];
+      at++;
+    }
+  }
+  permutedStart[n] = at;
+  return { size: n, columnStart: permutedStart, row: permutedRow, slot: permutedSlot };
+}
+
+/**
+ * U arrives by rows (row k: [rowStart[k], rowStart[k + 1]), columns already in step numbers);
+ * refactor() wants it by columns. Walking the rows in step order leaves each column's rows ascending.
+ */
+function transposeUpper(rowStart: Int32Array, column: Int32Array, value: Float64Array): { start: Int32Array; row: Int32Array; value: Float64Array } {
+  const n = rowStart.length - 1;
+  const count = column.length;
+  const start = new Int32Array(n + 1);
+  for (let e = 0; e < count; e++) start[column[e] + 1]++;
+  for (let k = 0; k < n; k++) start[k + 1] += start[k];
+  const next = start.slice(0, n);
+  const row = new Int32Array(count);
+  const transposedValue = new Float64Array(count);
+  for (let k = 0; k < n; k++) {
+    for (let e = rowStart[k], end = rowStart[k + 1]; e < end; e++) {
+      const place = next[column[e]]++;
+      row[place] = k;
+      transposedValue[place] = value[e];
+    }
+  }
+  return { start, row, value: transposedValue };
 }
 
 /** The matrix's slots grouped by column (a counting sort), for the elimination and the permuted scatter. */

@@ -261,206 +261,263 @@ export function eliminateWithMarkowitz(
   values: Float64Array,
   columnScale: Float64Array,
 ): EliminationResult {
-  const n = structure.size;
-  const active = new ActiveSubmatrix(structure, values);
-  const columnBuckets = new CountBuckets(n);
-  const rowBuckets = new CountBuckets(n);
-  for (let j = 0; j < n; j++) columnBuckets.link(j, active.columnLength[j]);
-  for (let i = 0; i < n; i++) rowBuckets.link(i, active.rowLength[i]);
+  return new MarkowitzElimination(structure, values, columnScale).run();
+}
 
-  // Largest magnitude left in each active column, recomputed only after the column changes.
-  const columnMaximum = new Float64Array(n);
-  const columnMaximumStale = new Uint8Array(n).fill(1);
-  const maximumOf = (column: number): number => {
-    if (columnMaximumStale[column]) {
+/** One elimination, its state in fields and each part of a step in its own small method. */
+class MarkowitzElimination {
+  private readonly size: number;
+  private readonly active: ActiveSubmatrix;
+  private readonly columnScale: Float64Array;
+  private readonly columnBuckets: CountBuckets;
+  private readonly rowBuckets: CountBuckets;
+  /** Largest magnitude left in each active column, recomputed only after the column changes. */
+  private readonly columnMaximum: Float64Array;
+  private readonly columnMaximumStale: Uint8Array;
+
+  private readonly pivotRow: Int32Array;
+  private readonly pivotColumn: Int32Array;
+  private readonly pivotValue: Float64Array;
+  private readonly lowerStart: Int32Array;
+  private readonly upperStart: Int32Array;
+  private readonly lowerRow: GrowingInt32;
+  private readonly lowerValue: GrowingFloat64;
+  private readonly upperColumn: GrowingInt32;
+  private readonly upperValue: GrowingFloat64;
+
+  // During a step's update: each pivot-column row's index into lowerRow, or NONE; and, per
+  // such row, the stamp of the last column update that found its element (no fill needed).
+  private readonly lowerIndexOfRow: Int32Array;
+  private readonly updatedAt: Int32Array;
+  private updateStamp = 0;
+
+  // The search's best candidate so far, and why the last search found none.
+  private bestCost = Infinity;
+  private bestRatio = 0;
+  private chosenElement = NONE;
+  private singularReason: SingularReason = 'numerical';
+
+  constructor(structure: ColumnStructure, values: Float64Array, columnScale: Float64Array) {
+    const n = structure.size;
+    this.size = n;
+    this.active = new ActiveSubmatrix(structure, values);
+    this.columnScale = columnScale;
+    this.columnBuckets = new CountBuckets(n);
+    this.rowBuckets = new CountBuckets(n);
+    for (let j = 0; j < n; j++) this.columnBuckets.link(j, this.active.columnLength[j]);
+    for (let i = 0; i < n; i++) this.rowBuckets.link(i, this.active.rowLength[i]);
+    this.columnMaximum = new Float64Array(n);
+    this.columnMaximumStale = new Uint8Array(n).fill(1);
+    this.pivotRow = new Int32Array(n);
+    this.pivotColumn = new Int32Array(n);
+    this.pivotValue = new Float64Array(n);
+    this.lowerStart = new Int32Array(n + 1);
+    this.upperStart = new Int32Array(n + 1);
+    const entries = structure.row.length;
+    this.lowerRow = new GrowingInt32(entries);
+    this.lowerValue = new GrowingFloat64(entries);
+    this.upperColumn = new GrowingInt32(entries);
+    this.upperValue = new GrowingFloat64(entries);
+    this.lowerIndexOfRow = new Int32Array(n).fill(NONE);
+    this.updatedAt = new Int32Array(n);
+  }
+
+  run(): EliminationResult {
+    const n = this.size;
+    for (let step = 0; step < n; step++) {
+      const singular = this.choosePivot();
+      if (singular !== NONE) return { ok: false, singularColumn: singular, reason: this.singularReason };
+      this.eliminate(step);
+    }
+    this.lowerStart[n] = this.lowerRow.length;
+    this.upperStart[n] = this.upperColumn.length;
+    return {
+      ok: true,
+      factors: {
+        pivotRow: this.pivotRow,
+        pivotColumn: this.pivotColumn,
+        pivotValue: this.pivotValue,
+        lowerStart: this.lowerStart,
+        lowerRow: this.lowerRow.trimmed(),
+        lowerValue: this.lowerValue.trimmed(),
+        upperStart: this.upperStart,
+        upperColumn: this.upperColumn.trimmed(),
+        upperValue: this.upperValue.trimmed(),
+      },
+    };
+  }
+
+  private maximumOf(column: number): number {
+    if (this.columnMaximumStale[column]) {
+      const active = this.active;
       let largest = 0;
       for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
         const magnitude = Math.abs(active.elementValue[e]);
         // NaN never compares greater, so a column of NaNs reads as empty: reported, not pivoted on.
         if (magnitude > largest) largest = magnitude;
       }
-      columnMaximum[column] = largest;
-      columnMaximumStale[column] = 0;
+      this.columnMaximum[column] = largest;
+      this.columnMaximumStale[column] = 0;
     }
-    return columnMaximum[column];
-  };
+    return this.columnMaximum[column];
+  }
 
-  const pivotRow = new Int32Array(n);
-  const pivotColumn = new Int32Array(n);
-  const pivotValue = new Float64Array(n);
-  const lowerStart = new Int32Array(n + 1);
-  const upperStart = new Int32Array(n + 1);
-  const entries = structure.row.length;
-  const lowerRow = new GrowingInt32(entries);
-  const lowerValue = new GrowingFloat64(entries);
-  const upperColumn = new GrowingInt32(entries);
-  const upperValue = new GrowingFloat64(entries);
-  // During a step's update: each pivot-column row's index into lowerRow, or NONE; and, per
-  // such row, the stamp of the last column update that found its element (no fill needed).
-  const lowerIndexOfRow = new Int32Array(n).fill(NONE);
-  const updatedAt = new Int32Array(n);
-  let updateStamp = 0;
+  /** Whether the column has nothing but numerical zeros left. */
+  private isNumericallyEmpty(column: number, largest: number): boolean {
+    return !(largest > NUMERICAL_ZERO_RELATIVE * this.columnScale[column]);
+  }
 
-  // The search's best candidate so far.
-  let bestCost = Infinity;
-  let bestRatio = 0;
-  let chosenElement = NONE;
   /** Weighs one candidate pivot; returns whether it passes the threshold test. */
-  const consider = (element: number, column: number, largest: number, cost: number): boolean => {
-    const magnitude = Math.abs(active.elementValue[element]);
-    if (!(magnitude > NUMERICAL_ZERO_RELATIVE * columnScale[column]) || magnitude < PIVOT_SELECTION_THRESHOLD * largest) return false;
+  private consider(element: number, column: number, largest: number, cost: number): boolean {
+    const magnitude = Math.abs(this.active.elementValue[element]);
+    if (!(magnitude > NUMERICAL_ZERO_RELATIVE * this.columnScale[column]) || magnitude < PIVOT_SELECTION_THRESHOLD * largest) return false;
     const ratio = magnitude / largest;
-    if (cost < bestCost || (cost === bestCost && ratio > bestRatio)) {
-      bestCost = cost;
-      bestRatio = ratio;
-      chosenElement = element;
+    if (cost < this.bestCost || (cost === this.bestCost && ratio > this.bestRatio)) {
+      this.bestCost = cost;
+      this.bestRatio = ratio;
+      this.chosenElement = element;
     }
     return true;
-  };
+  }
 
-  // Set with the column that choosePivot() returns when it finds no pivot.
-  let singularReason: SingularReason = 'numerical';
-
-  /** Picks the next pivot into chosenElement; returns NONE, or the column found singular (reason in singularReason). */
-  const choosePivot = (): number => {
-    const emptyColumn = columnBuckets.head[0];
-    singularReason = 'structural';
+  /**
+   * Picks the next pivot into chosenElement, searching columns and rows in order of
+   * increasing count and stopping once no unseen candidate can be cheaper, or once
+   * MARKOWITZ_SEARCH_LIMIT lines with a candidate have been seen. Returns NONE, or the
+   * column found singular (with singularReason).
+   */
+  private choosePivot(): number {
+    const active = this.active;
+    const emptyColumn = this.columnBuckets.head[0];
+    this.singularReason = 'structural';
     if (emptyColumn !== NONE) return emptyColumn;
-    singularReason = 'numerical';
-    bestCost = Infinity;
-    bestRatio = 0;
-    chosenElement = NONE;
+    this.singularReason = 'numerical';
+    this.bestCost = Infinity;
+    this.bestRatio = 0;
+    this.chosenElement = NONE;
     let examined = 0;
-    for (let count = 1; count <= n; count++) {
+    for (let count = 1; count <= this.size; count++) {
       // Columns with `count` entries: each candidate costs (rowCount − 1)·(count − 1).
-      for (let column = columnBuckets.head[count]; column !== NONE; column = columnBuckets.following(column)) {
-        const largest = maximumOf(column);
-        if (!(largest > NUMERICAL_ZERO_RELATIVE * columnScale[column])) return column;
+      for (let column = this.columnBuckets.head[count]; column !== NONE; column = this.columnBuckets.following(column)) {
+        const largest = this.maximumOf(column);
+        if (this.isNumericallyEmpty(column, largest)) return column;
         let usable = false;
         for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
-          if (consider(e, column, largest, (active.rowLength[active.elementRow[e]] - 1) * (count - 1))) usable = true;
+          if (this.consider(e, column, largest, (active.rowLength[active.elementRow[e]] - 1) * (count - 1))) usable = true;
         }
         if (usable) examined++;
-        if (bestCost <= (count - 1) * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && chosenElement !== NONE)) return NONE;
+        if (this.bestCost <= (count - 1) * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && this.chosenElement !== NONE)) return NONE;
       }
       // Any candidate not yet seen lies in a row of at least `count` and a column of more than `count` entries.
-      if (bestCost <= count * (count - 1)) return NONE;
-      for (let row = rowBuckets.head[count]; row !== NONE; row = rowBuckets.following(row)) {
+      if (this.bestCost <= count * (count - 1)) return NONE;
+      for (let row = this.rowBuckets.head[count]; row !== NONE; row = this.rowBuckets.following(row)) {
         let usable = false;
         for (let e = active.rowFirst[row]; e !== NONE; e = active.nextElementInRow(e)) {
           const column = active.elementColumn[e];
-          const largest = maximumOf(column);
-          if (!(largest > NUMERICAL_ZERO_RELATIVE * columnScale[column])) return column;
-          if (consider(e, column, largest, (count - 1) * (active.columnLength[column] - 1))) usable = true;
+          const largest = this.maximumOf(column);
+          if (this.isNumericallyEmpty(column, largest)) return column;
+          if (this.consider(e, column, largest, (count - 1) * (active.columnLength[column] - 1))) usable = true;
         }
         if (usable) examined++;
-        if (bestCost <= count * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && chosenElement !== NONE)) return NONE;
+        if (this.bestCost <= count * (count - 1) || (examined >= MARKOWITZ_SEARCH_LIMIT && this.chosenElement !== NONE)) return NONE;
       }
-      if (bestCost <= count * count) return NONE;
+      if (this.bestCost <= count * count) return NONE;
     }
-    if (chosenElement !== NONE) return NONE;
+    if (this.chosenElement !== NONE) return NONE;
     // Unreachable for a well-formed active submatrix; name any active column rather than loop.
-    for (let column = 0; column < n; column++) if (active.columnActive[column]) return column;
+    for (let column = 0; column < this.size; column++) if (active.columnActive[column]) return column;
     return 0;
-  };
+  }
 
-  for (let step = 0; step < n; step++) {
-    const singular = choosePivot();
-    if (singular !== NONE) return { ok: false, singularColumn: singular, reason: singularReason };
-    const p = active.elementRow[chosenElement];
-    const q = active.elementColumn[chosenElement];
-    const pivot = active.elementValue[chosenElement];
-    pivotRow[step] = p;
-    pivotColumn[step] = q;
-    pivotValue[step] = pivot;
+  /** Eliminates with the chosen pivot: records L's column and U's row, then updates the Schur complement. */
+  private eliminate(step: number): void {
+    const active = this.active;
+    const p = active.elementRow[this.chosenElement];
+    const q = active.elementColumn[this.chosenElement];
+    const pivot = active.elementValue[this.chosenElement];
+    this.pivotRow[step] = p;
+    this.pivotColumn[step] = q;
+    this.pivotValue[step] = pivot;
 
     // The pivot column below the pivot becomes column `step` of L; its elements leave their rows.
-    lowerStart[step] = lowerRow.length;
-    columnBuckets.unlink(q);
+    this.lowerStart[step] = this.lowerRow.length;
+    this.columnBuckets.unlink(q);
     active.columnActive[q] = 0;
     for (let e = active.columnFirst[q]; e !== NONE; e = active.nextElementInColumn(e)) {
       const row = active.elementRow[e];
       if (row === p) continue;
-      lowerRow.push(row);
-      lowerValue.push(active.elementValue[e] / pivot);
-      rowBuckets.unlink(row);
+      this.lowerRow.push(row);
+      this.lowerValue.push(active.elementValue[e] / pivot);
+      this.rowBuckets.unlink(row);
       active.removeFromRow(e);
     }
-    const lowerFirst = lowerStart[step];
-    const lowerEnd = lowerRow.length;
 
     // The pivot row right of the pivot becomes row `step` of U; its elements leave their columns.
-    upperStart[step] = upperColumn.length;
-    rowBuckets.unlink(p);
+    this.upperStart[step] = this.upperColumn.length;
+    this.rowBuckets.unlink(p);
     active.rowActive[p] = 0;
     for (let e = active.rowFirst[p]; e !== NONE; e = active.nextElementInRow(e)) {
       const column = active.elementColumn[e];
       if (column === q) continue;
-      upperColumn.push(column);
-      upperValue.push(active.elementValue[e]);
-      columnBuckets.unlink(column);
+      this.upperColumn.push(column);
+      this.upperValue.push(active.elementValue[e]);
+      this.columnBuckets.unlink(column);
       active.removeFromColumn(e);
     }
-    const upperFirst = upperStart[step];
-    const upperEnd = upperColumn.length;
 
-    // Schur complement update: a[i][j] −= l[i]·u[j], adding fill where (i, j) was empty.
-    // Per column, either one walk down the column picking out the pivot column's rows
-    // (cost ~ its length), or each (i, j) looked up along its shorter line, whichever is
-    // cheaper: the walk suits dense fill, the look-ups a long column touched by few rows.
-    for (let l = lowerFirst; l < lowerEnd; l++) lowerIndexOfRow[lowerRow.data[l]] = l;
-    for (let u = upperFirst; u < upperEnd; u++) {
-      const column = upperColumn.data[u];
-      const upper = upperValue.data[u];
-      const length = active.columnLength[column];
-      let lookupCost = 0;
-      for (let l = lowerFirst; l < lowerEnd && lookupCost <= length; l++) {
-        const row = lowerRow.data[l];
-        lookupCost += row === column ? 1 : Math.min(active.rowLength[row], length);
-      }
-      if (lookupCost <= length) {
-        for (let l = lowerFirst; l < lowerEnd; l++) {
-          const row = lowerRow.data[l];
-          const update = lowerValue.data[l] * upper;
-          const element = active.find(row, column);
-          if (element !== NONE) active.elementValue[element] -= update;
-          else active.add(row, column, -update);
-        }
-      } else {
-        updateStamp++;
-        for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
-          const l = lowerIndexOfRow[active.elementRow[e]];
-          if (l === NONE) continue;
-          active.elementValue[e] -= lowerValue.data[l] * upper;
-          updatedAt[l - lowerFirst] = updateStamp;
-        }
-        for (let l = lowerFirst; l < lowerEnd; l++) {
-          if (updatedAt[l - lowerFirst] !== updateStamp) active.add(lowerRow.data[l], column, -lowerValue.data[l] * upper);
-        }
-      }
-      columnMaximumStale[column] = 1;
-      columnBuckets.link(column, active.columnLength[column]);
+    const lowerFirst = this.lowerStart[step];
+    const lowerEnd = this.lowerRow.length;
+    const lowerRow = this.lowerRow.data;
+    for (let l = lowerFirst; l < lowerEnd; l++) this.lowerIndexOfRow[lowerRow[l]] = l;
+    for (let u = this.upperStart[step], end = this.upperColumn.length; u < end; u++) {
+      const column = this.upperColumn.data[u];
+      this.updateColumn(column, this.upperValue.data[u], lowerFirst, lowerEnd);
+      this.columnMaximumStale[column] = 1;
+      this.columnBuckets.link(column, active.columnLength[column]);
     }
-    for (let l = lowerFirst; l < lowerEnd; l++) lowerIndexOfRow[lowerRow.data[l]] = NONE;
     for (let l = lowerFirst; l < lowerEnd; l++) {
-      const row = lowerRow.data[l];
-      rowBuckets.link(row, active.rowLength[row]);
+      const row = lowerRow[l];
+      this.lowerIndexOfRow[row] = NONE;
+      this.rowBuckets.link(row, active.rowLength[row]);
     }
   }
-  lowerStart[n] = lowerRow.length;
-  upperStart[n] = upperColumn.length;
-  return {
-    ok: true,
-    factors: {
-      pivotRow,
-      pivotColumn,
-      pivotValue,
-      lowerStart,
-      lowerRow: lowerRow.trimmed(),
-      lowerValue: lowerValue.trimmed(),
-      upperStart,
-      upperColumn: upperColumn.trimmed(),
-      upperValue: upperValue.trimmed(),
-    },
-  };
+
+  /**
+   * Schur complement update of one column: a[i][column] −= l[i]·upper for the pivot
+   * column's rows i, adding fill where (i, column) was empty. Either one walk down the
+   * column picking out those rows (cost ~ its length), or each (i, column) looked up
+   * along its shorter line, whichever is cheaper: the walk suits dense fill, the
+   * look-ups a long column touched by few rows.
+   */
+  private updateColumn(column: number, upper: number, lowerFirst: number, lowerEnd: number): void {
+    const active = this.active;
+    const lowerRow = this.lowerRow.data;
+    const lowerValue = this.lowerValue.data;
+    const length = active.columnLength[column];
+    let lookupCost = 0;
+    for (let l = lowerFirst; l < lowerEnd && lookupCost <= length; l++) {
+      const row = lowerRow[l];
+      lookupCost += row === column ? 1 : Math.min(active.rowLength[row], length);
+    }
+    if (lookupCost <= length) {
+      for (let l = lowerFirst; l < lowerEnd; l++) {
+        const row = lowerRow[l];
+        const update = lowerValue[l] * upper;
+        const element = active.find(row, column);
+        if (element !== NONE) active.elementValue[element] -= update;
+        else active.add(row, column, -update);
+      }
+      return;
+    }
+    const stamp = ++this.updateStamp;
+    for (let e = active.columnFirst[column]; e !== NONE; e = active.nextElementInColumn(e)) {
+      const l = this.lowerIndexOfRow[active.elementRow[e]];
+      if (l === NONE) continue;
+      active.elementValue[e] -= lowerValue[l] * upper;
+      this.updatedAt[l - lowerFirst] = stamp;
+    }
+    for (let l = lowerFirst; l < lowerEnd; l++) {
+      if (this.updatedAt[l - lowerFirst] !== stamp) active.add(lowerRow[l], column, -lowerValue[l] * upper);
+    }
+  }
 }
