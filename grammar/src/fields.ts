@@ -97,14 +97,30 @@ function beginsLikeNumber(text: string): boolean {
   return code >= 48 && code <= 57;
 }
 
+/**
+ * The alternatives and repetition bodies are built once, as fields, and the actions test
+ * RECORDING_PHASE instead of wrapping themselves in ACTION closures: a closure per token
+ * was most of the garbage that a large file made.
+ */
 class FieldParser extends EmbeddedActionsParser {
   maker: FieldMaker | undefined;
   lines: FieldLine[] = [];
   private current: Field[] = [];
+  /** The item lists of the groups being read, innermost last. */
+  private groupItems: Field[][] = [];
+  /** The `,`-separated rest of a list value (`ic=1,2`); the repetition that fills it does not nest. */
+  private listRest: Field[] | undefined;
 
   constructor() {
     super(tokenTypes, { recoveryEnabled: false, maxLookahead: 3, skipValidations: false });
     this.performSelfAnalysis();
+  }
+
+  override reset(): void {
+    super.reset();
+    this.current = [];
+    this.groupItems = [];
+    this.listRest = undefined;
   }
 
   private endLine(): void {
@@ -115,168 +131,180 @@ class FieldParser extends EmbeddedActionsParser {
   }
 
   private stray(token: IToken, message: string): void {
-    this.maker!.report(message, this.maker!.tokenRange(token));
+    if (!this.RECORDING_PHASE) this.maker!.report(message, this.maker!.tokenRange(token));
   }
+
+  private readonly strayEquals = {
+    ALT: () => this.stray(this.CONSUME(Equals), 'a `=` needs a name before it'),
+  };
+  private readonly strayBrace = {
+    ALT: () => this.stray(this.CONSUME(StrayBrace), 'this `}` closes nothing'),
+  };
+
+  private readonly lineAlternatives = [
+    {
+      ALT: () => {
+        const field = this.SUBRULE(this.field);
+        if (!this.RECORDING_PHASE) this.current.push(field);
+      },
+    },
+    {
+      ALT: () => {
+        this.CONSUME(Newline);
+        if (!this.RECORDING_PHASE) this.endLine();
+      },
+    },
+    { ALT: () => { this.CONSUME(Comma); } },
+    this.strayEquals,
+    this.strayBrace,
+    { ALT: () => this.stray(this.CONSUME(RightParen), 'this `)` closes nothing') },
+  ];
+  private readonly lineItem = (): void => {
+    this.OR(this.lineAlternatives);
+  };
 
   netlist = this.RULE('netlist', () => {
-    this.MANY(() => {
-      this.OR([
-        {
-          ALT: () => {
-            const field = this.SUBRULE(this.field);
-            this.ACTION(() => this.current.push(field));
-          },
-        },
-        { ALT: () => { this.CONSUME(Newline); this.ACTION(() => this.endLine()); } },
-        { ALT: () => { this.CONSUME(Comma); } },
-        ...this.strays(0, false),
-      ]);
-    });
+    this.MANY(this.lineItem);
   });
 
-  /** Tokens that can stand nowhere: each is reported, and reading goes on. Inside a group, `)` closes it. */
-  private strays(index: number, insideGroup: boolean) {
-    const strays = [
-      { ALT: () => { const token = this.consume(index, Equals); this.ACTION(() => this.stray(token, 'a `=` needs a name before it')); } },
-      { ALT: () => { const token = this.consume(index, StrayBrace); this.ACTION(() => this.stray(token, 'this `}` closes nothing')); } },
-    ];
-    if (!insideGroup) {
-      strays.push({ ALT: () => { const token = this.consume(index, RightParen); this.ACTION(() => this.stray(token, 'this `)` closes nothing')); } });
-    }
-    return strays;
-  }
-
-  field = this.RULE('field', (): Field => {
-    return this.OR([
-      { ALT: () => this.SUBRULE(this.wordField) },
-      { ALT: () => this.SUBRULE(this.simpleValue) },
-      {
-        ALT: () => {
-          const group = this.SUBRULE(this.group, { ARGS: [undefined] });
-          let result: Field = group;
-          this.OPTION(() => {
-            const equals = this.CONSUME(Equals);
-            const value = this.SUBRULE(this.assignedValue, { ARGS: [equals] });
-            result = this.ACTION(() => this.maker!.assign(group, value));
-          });
-          return result;
-        },
+  private readonly fieldAlternatives = [
+    { ALT: () => this.SUBRULE(this.wordField) },
+    { ALT: () => this.SUBRULE(this.simpleValue) },
+    {
+      ALT: (): Field => {
+        const group = this.SUBRULE(this.group);
+        const value = this.OPTION(this.assignment);
+        if (this.RECORDING_PHASE) return group;
+        return value ? this.maker!.assign(group, value) : group;
       },
-    ]);
-  });
+    },
+  ];
+
+  field = this.RULE('field', (): Field => this.OR(this.fieldAlternatives));
+
+  private readonly assignment = (): Field => this.SUBRULE(this.assignedValue);
+  private readonly groupAfterWord = (): GroupField => this.SUBRULE(this.group);
 
   /** A word, a named group `SIN(…)`, and either of them as the key of `key=value`. */
   wordField = this.RULE('wordField', (): Field => {
     const token = this.CONSUME(Word);
-    let result: Field | undefined;
-    this.OPTION(() => {
-      const name = this.ACTION(() => this.maker!.word(token));
-      result = this.SUBRULE(this.group, { ARGS: [name] });
-    });
-    this.OPTION1(() => {
-      const equals = this.CONSUME(Equals);
-      const value = this.SUBRULE(this.assignedValue, { ARGS: [equals] });
-      result = this.ACTION(() => {
-        const key = result?.kind === 'group' ? result : this.maker!.word(token);
-        return this.maker!.assign(key, value);
-      });
-    });
-    return this.ACTION(() => result ?? this.maker!.wordOrNumber(token));
+    const group = this.OPTION(this.groupAfterWord);
+    const value = this.OPTION1(this.assignment);
+    if (this.RECORDING_PHASE) return undefined as unknown as Field;
+    const maker = this.maker!;
+    const key = group ? named(group, token, maker) : undefined;
+    if (value) return maker.assign(key ?? maker.word(token), value);
+    return key ?? maker.wordOrNumber(token);
   });
+
+  private readonly simpleAlternatives = [
+    { ALT: () => this.expressionToken(this.CONSUME(BraceExpression)) },
+    { ALT: () => this.expressionToken(this.CONSUME(QuoteExpression)) },
+    {
+      ALT: (): Field => {
+        const token = this.CONSUME(QuotedString);
+        return this.RECORDING_PHASE ? (undefined as unknown as Field) : this.maker!.word(token);
+      },
+    },
+  ];
+
+  private expressionToken(token: IToken): Field {
+    return this.RECORDING_PHASE ? (undefined as unknown as Field) : this.maker!.delimitedExpression(token);
+  }
 
   /** An expression or a quoted string: fields that take no name and no group. */
-  simpleValue = this.RULE('simpleValue', (): Field => {
-    return this.OR([
-      { ALT: () => { const token = this.CONSUME(BraceExpression); return this.ACTION(() => this.maker!.delimitedExpression(token)); } },
-      { ALT: () => { const token = this.CONSUME(QuoteExpression); return this.ACTION(() => this.maker!.delimitedExpression(token)); } },
-      { ALT: () => { const token = this.CONSUME(QuotedString); return this.ACTION(() => this.maker!.word(token)); } },
-    ]);
+  simpleValue = this.RULE('simpleValue', (): Field => this.OR(this.simpleAlternatives));
+
+  private readonly groupAlternatives = [
+    {
+      ALT: () => {
+        const item = this.SUBRULE(this.field);
+        if (!this.RECORDING_PHASE) this.groupItems[this.groupItems.length - 1]!.push(item);
+      },
+    },
+    { ALT: () => { this.CONSUME(Comma); } },
+    this.strayEquals,
+    this.strayBrace,
+  ];
+  private readonly groupItem = (): void => {
+    this.OR(this.groupAlternatives);
+  };
+  private readonly closeParen = (): IToken => this.CONSUME(RightParen);
+
+  /** `( items )`; a missing `)` is reported at the `(`. The name, if any, is set by the caller. */
+  group = this.RULE('group', (): GroupField => {
+    const open = this.CONSUME(LeftParen);
+    if (!this.RECORDING_PHASE) this.groupItems.push([]);
+    this.MANY(this.groupItem);
+    const close = this.OPTION(this.closeParen);
+    if (this.RECORDING_PHASE) return undefined as unknown as GroupField;
+    const items = this.groupItems.pop()!;
+    const maker = this.maker!;
+    let end = open.startOffset + 1;
+    if (close) end = close.startOffset + 1;
+    else {
+      const last = items[items.length - 1];
+      if (last) end = last.range.end.offset;
+      maker.report('this `(` is not closed on its line', maker.tokenRange(open));
+    }
+    return { kind: 'group', name: undefined, items, range: maker.index.range(open.startOffset, end) };
   });
 
-  /** `( items )`; a missing `)` is reported at the `(`. */
-  group = this.RULE('group', (name: WordField | undefined): GroupField => {
-    const open = this.CONSUME(LeftParen);
-    const items: Field[] = [];
-    this.MANY(() => {
-      this.OR([
-        {
-          ALT: () => {
-            const item = this.SUBRULE(this.field);
-            this.ACTION(() => items.push(item));
-          },
-        },
-        { ALT: () => { this.CONSUME(Comma); } },
-        ...this.strays(1, true),
-      ]);
-    });
-    let end = open.startOffset + 1;
-    this.OR1([
-      { ALT: () => { const close = this.CONSUME(RightParen); end = close.startOffset + 1; } },
-      {
-        ALT: () => {
-          this.ACTION(() => {
-            const last = items[items.length - 1];
-            if (last) end = last.range.end.offset;
-            this.stray(open, 'this `(` is not closed on its line');
-          });
-        },
+  private readonly valueAlternatives = [
+    {
+      ALT: (): Field => {
+        const token = this.CONSUME(Word);
+        const group = this.OPTION2(this.groupAfterWord);
+        if (this.RECORDING_PHASE) return undefined as unknown as Field;
+        return group ? named(group, token, this.maker!) : this.maker!.wordOrNumber(token);
       },
-    ]);
-    return this.ACTION(() => {
-      const start = name ? name.range.start.offset : open.startOffset;
-      return { kind: 'group', name, items, range: this.maker!.index.range(start, end) } satisfies GroupField;
-    });
-  });
+    },
+    { ALT: () => this.SUBRULE(this.simpleValue) },
+    { ALT: () => this.SUBRULE1(this.group) },
+  ];
+  private readonly value = (): Field => this.OR(this.valueAlternatives);
+
+  private readonly listRepetition = {
+    GATE: () => this.LA(1).tokenType === Comma && this.LA(2).tokenType === Word && this.LA(3).tokenType !== Equals,
+    DEF: () => {
+      this.CONSUME(Comma);
+      const token = this.CONSUME1(Word);
+      if (!this.RECORDING_PHASE) (this.listRest ??= []).push(this.maker!.wordOrNumber(token));
+    },
+  };
 
   /**
-   * The value after `=`: a word, a named or bare group, an expression or a string. A list
-   * such as `ic=1,2` becomes an unnamed group; a comma followed by `key=` ends the value.
+   * `= value`: a word, a named or bare group, an expression or a string. A list such as
+   * `ic=1,2` becomes an unnamed group; a comma followed by `key=` ends the value.
    */
-  assignedValue = this.RULE('assignedValue', (equals: IToken): Field => {
-    let first: Field | undefined;
-    this.OR([
-      {
-        ALT: () => {
-          const token = this.CONSUME(Word);
-          first = this.ACTION(() => this.maker!.wordOrNumber(token));
-          this.OPTION(() => {
-            const name = this.ACTION(() => this.maker!.word(token));
-            first = this.SUBRULE(this.group, { ARGS: [name] });
-          });
-        },
-      },
-      { ALT: () => { first = this.SUBRULE(this.simpleValue); } },
-      { ALT: () => { first = this.SUBRULE1(this.group, { ARGS: [undefined] }); } },
-      {
-        // Nothing after `=`.
-        ALT: () => {
-          this.ACTION(() => {
-            this.stray(equals, 'a value is missing after this `=`');
-            first = { kind: 'word', text: '', range: this.maker!.index.range(equals.startOffset + 1, equals.startOffset + 1) };
-          });
-        },
-      },
-    ]);
-    const list: Field[] | undefined = [];
-    this.MANY({
-      GATE: () => this.LA(1).tokenType === Comma && startsValue(this.LA(2)) && this.LA(3).tokenType !== Equals,
-      DEF: () => {
-        this.CONSUME(Comma);
-        const token = this.CONSUME1(Word);
-        this.ACTION(() => list.push(this.maker!.wordOrNumber(token)));
-      },
-    });
-    return this.ACTION(() => {
-      if (list.length === 0) return first!;
-      const items = [first!, ...list];
-      const range = { start: first!.range.start, end: items[items.length - 1]!.range.end };
-      return { kind: 'group', name: undefined, items, range } satisfies GroupField;
-    });
+  assignedValue = this.RULE('assignedValue', (): Field => {
+    const equals = this.CONSUME(Equals);
+    const first = this.OPTION(this.value);
+    this.listRest = undefined;
+    this.MANY(this.listRepetition);
+    if (this.RECORDING_PHASE) return undefined as unknown as Field;
+    const maker = this.maker!;
+    const rest = this.listRest;
+    this.listRest = undefined;
+    let value: Field;
+    if (first) value = first;
+    else {
+      maker.report('a value is missing after this `=`', maker.tokenRange(equals));
+      const after = equals.startOffset + 1;
+      value = { kind: 'word', text: '', range: maker.index.range(after, after) };
+    }
+    if (!rest) return value;
+    const items = [value, ...rest];
+    return { kind: 'group', name: undefined, items, range: { start: value.range.start, end: items[items.length - 1]!.range.end } };
   });
 }
 
-function startsValue(token: IToken): boolean {
-  return token.tokenType === Word;
+/** A group written right after a word: the word names it, and its range starts there. */
+function named(group: GroupField, token: IToken, maker: FieldMaker): GroupField {
+  const name = maker.word(token);
+  group.name = name;
+  group.range = { start: name.range.start, end: group.range.end };
+  return group;
 }
 
 let parser: FieldParser | undefined;
