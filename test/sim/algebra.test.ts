@@ -365,6 +365,25 @@ describe('SparseLU on MNA structures with zero diagonals', () => {
     }
   });
 
+  it('factors the full-size 20,000-section ladder (40,002 unknowns) with no fill and a tiny residual', () => {
+    const circuit = ladder(20_000, (k) => 10 ** (-12 + (k % 13)));
+    const { matrix, slots } = buildMatrix(circuit.size, circuit.entries);
+    const lu = new SparseLU(matrix);
+    expect(lu.factor()).toEqual({ ok: true });
+    // No fill: the ladder's graph is a tree (Parter, 1961).
+    expect(lu.statistics.factorEntries).toBe(matrix.entryCount);
+    for (const conductance of [1e-9, 1e-2]) {
+      const next = ladder(20_000, () => conductance);
+      setValues(matrix, slots, next.entries);
+      expect(lu.factor()).toEqual({ ok: true });
+      const x = solveSparse(lu, next.rhs);
+      expect(backwardError(next.size, next.entries, x, next.rhs)).toBeLessThan(BACKWARD_ERROR_TOLERANCE);
+      // Ohm's law: the supply node sits at the source's 5 V.
+      expect(x[0]).toBeCloseTo(5, 12);
+    }
+    expect(lu.statistics.orderings).toBe(1);
+  });
+
   it('refactors a ladder across Newton-like value changes with the same ordering, still exact', () => {
     const sections = 40;
     const first = ladder(sections, () => 1e-12);
@@ -536,3 +555,88 @@ describe('SparseLU on singular matrices', () => {
     expect(x[1]).toBeCloseTo(1 / 3, 12);
   });
 });
+
+describe('SparseLU against exact arithmetic on small integer matrices', () => {
+  /** Exact rank by fraction-free Gaussian elimination in integers (Bareiss, Math. Comp. 22, 1968). */
+  function exactRank(dense: number[][]): number {
+    const n = dense.length;
+    const a = dense.map((row) => row.map((value) => BigInt(value)));
+    let rank = 0;
+    let previous = 1n;
+    const usedRow = new Array<boolean>(n).fill(false);
+    for (let column = 0; column < n; column++) {
+      const pivotRow = a.findIndex((row, i) => !usedRow[i] && row[column] !== 0n);
+      if (pivotRow < 0) continue;
+      usedRow[pivotRow] = true;
+      rank++;
+      for (let i = 0; i < n; i++) {
+        if (usedRow[i]) continue;
+        for (let j = column + 1; j < n; j++) a[i][j] = (a[i][j] * a[pivotRow][column] - a[i][column] * a[pivotRow][j]) / previous;
+        a[i][column] = 0n;
+      }
+      previous = a[pivotRow][column];
+    }
+    return rank;
+  }
+
+  /** Structural rank: a maximum matching of rows to columns through the pattern (augmenting paths, König's theorem). */
+  function structuralRank(n: number, pattern: Set<number>): number {
+    const matchOfColumn = new Array<number>(n).fill(-1);
+    const augment = (row: number, seen: boolean[]): boolean => {
+      for (let column = 0; column < n; column++) {
+        if (!pattern.has(row * n + column) || seen[column]) continue;
+        seen[column] = true;
+        if (matchOfColumn[column] < 0 || augment(matchOfColumn[column], seen)) {
+          matchOfColumn[column] = row;
+          return true;
+        }
+      }
+      return false;
+    };
+    let rank = 0;
+    for (let row = 0; row < n; row++) if (augment(row, new Array<boolean>(n).fill(false))) rank++;
+    return rank;
+  }
+
+  it('calls a matrix singular exactly when its exact rank is deficient, and says structural only when it is', () => {
+    const random = randomSource(2024);
+    let singularSeen = 0;
+    let structuralSeen = 0;
+    for (let trial = 0; trial < 1500; trial++) {
+      const n = 1 + Math.floor(random() * 8);
+      const entries: Entry[] = [];
+      const pattern = new Set<number>();
+      for (let i = 0; i < n; i++) {
+        for (let j = 0; j < n; j++) {
+          if (random() > 0.45) continue;
+          pattern.add(i * n + j);
+          // Mostly small nonzero integers; now and then a registered entry holding zero.
+          const value = random() < 0.1 ? 0 : (1 + Math.floor(random() * 3)) * (random() < 0.5 ? -1 : 1);
+          entries.push([i, j, value]);
+        }
+      }
+      const dense = toDense(n, entries);
+      const rank = exactRank(dense);
+      const result = new SparseLU(buildMatrix(n, entries).matrix).factor();
+      expect(result.ok, `trial ${trial}: exact rank ${rank} of ${n}`).toBe(rank === n);
+      if (result.ok) {
+        const b = Array.from({ length: n }, (_, i) => i + 1);
+        const lu = new SparseLU(buildMatrix(n, entries).matrix);
+        lu.factor();
+        expect(backwardError(n, entries, solveSparse(lu, b), b)).toBeLessThan(BACKWARD_ERROR_TOLERANCE);
+      } else {
+        singularSeen++;
+        expect(result.singularColumn).toBeGreaterThanOrEqual(0);
+        expect(result.singularColumn).toBeLessThan(n);
+        if (result.reason === 'structural') {
+          structuralSeen++;
+          expect(structuralRank(n, pattern), `trial ${trial}`).toBeLessThan(n);
+        }
+      }
+    }
+    // The generator must exercise both kinds of failure (a check on the test itself).
+    expect(singularSeen).toBeGreaterThan(100);
+    expect(structuralSeen).toBeGreaterThan(50);
+  });
+});
+
