@@ -41,7 +41,7 @@ export interface CompiledCircuit {
 }
 
 function canonicalNode(name: string): string {
-  return name === GROUND || name.toLowerCase() === 'gnd' ? GROUND : name;
+  return name === GROUND || (name.length === 3 && name.toLowerCase() === 'gnd') ? GROUND : name;
 }
 
 function createDevice(element: Element): Device | undefined {

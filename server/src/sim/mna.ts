@@ -112,6 +112,9 @@ export interface Device {
   solveDiagnostics?(): NetlistDiagnostic[];
 }
 
+/** Entries per matrix row searched linearly before a row gets a map (ours: a typical node has a handful). */
+const SHORT_ROW_ENTRIES = 16;
+
 /** Numbers the unknowns and collects the matrix structure while devices register. */
 export class StructureBuilder implements SetupContext {
   readonly unknowns: Unknown[] = [{ kind: 'node', name: '0', label: 'ground' }];
@@ -119,7 +122,9 @@ export class StructureBuilder implements SetupContext {
   /** Our slot number → (row, column) as unknown numbers; slot 0 is the discard. */
   readonly slotRows: number[] = [0];
   readonly slotColumns: number[] = [0];
-  private readonly slotByPosition = new Map<number, number>();
+  /** Per row: (column, slot) pairs; rows beyond SHORT_ROW_ENTRIES also get a map. */
+  private readonly rowEntries: number[][] = [];
+  private readonly longRows = new Map<number, Map<number, number>>();
 
   constructor(nodeNames: readonly string[]) {
     this.nodeIndex.set('0', 0);
@@ -153,14 +158,30 @@ export class StructureBuilder implements SetupContext {
 
   slot(row: number, column: number): number {
     if (row === 0 || column === 0) return 0;
-    // Unknown counts stay far below 2^26, so the position key is exact in a double.
-    const position = row * 67_108_864 + column;
-    const existing = this.slotByPosition.get(position);
-    if (existing !== undefined) return existing;
+    // Rows hold few entries: a short list of (column, slot) pairs, and a map once a row grows long.
+    // Grow the row table densely (a sparse JS array would fall back to a slow dictionary).
+    while (this.rowEntries.length <= row) this.rowEntries.push([]);
+    const entries = this.rowEntries[row];
+    if (entries.length <= 2 * SHORT_ROW_ENTRIES) {
+      for (let i = 0; i < entries.length; i += 2) if (entries[i] === column) return entries[i + 1];
+    } else {
+      const existing = this.longRows.get(row)!.get(column);
+      if (existing !== undefined) return existing;
+    }
     const index = this.slotRows.length;
-    this.slotByPosition.set(position, index);
     this.slotRows.push(row);
     this.slotColumns.push(column);
+    if (entries.length <= 2 * SHORT_ROW_ENTRIES) {
+      entries.push(column, index);
+      if (entries.length > 2 * SHORT_ROW_ENTRIES) {
+        const map = new Map<number, number>();
+        for (let i = 0; i < entries.length; i += 2) map.set(entries[i], entries[i + 1]);
+        this.longRows.set(row, map);
+      }
+    } else {
+      this.longRows.get(row)!.set(column, index);
+      entries.push(column, index);
+    }
     return index;
   }
 

@@ -8,7 +8,7 @@ import type { Bjt } from '../../netlist/circuit.js';
 import { ZERO_CELSIUS_IN_KELVIN } from '../constants.js';
 import type { ConvergenceContext, CornerConditions, Device, DeviceResultSink, LoadContext, SetupContext } from '../mna.js';
 import { criticalVoltage, junctionCurrent, limitJunctionVoltage, thermalVoltage } from './junction.js';
-import { isGiven, modelParameter } from './parameters.js';
+import { cachedByModel, isGiven, modelParameter } from './parameters.js';
 
 export interface BjtParameters {
   polarity: 1 | -1;
@@ -114,7 +114,7 @@ export class BjtDevice implements Device {
   private warm = false;
 
   constructor(readonly element: Bjt) {
-    this.parameters = bjtParameters(element);
+    this.parameters = cachedByModel(bjtParameters, element);
   }
 
   setup(context: SetupContext): void {

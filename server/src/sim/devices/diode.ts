@@ -6,8 +6,8 @@
 import type { Diode as DiodeElement, NetlistDiagnostic } from '../../netlist/circuit.js';
 import { DEFAULT_TEMPERATURE_CELSIUS, ZERO_CELSIUS_IN_KELVIN } from '../constants.js';
 import type { ConvergenceContext, CornerConditions, Device, DeviceResultSink, LoadContext, SetupContext } from '../mna.js';
-import { criticalVoltage, junctionCurrent, limitJunctionVoltage, limitedExp, thermalVoltage } from './junction.js';
-import { isGiven, modelParameter } from './parameters.js';
+import { criticalVoltage, junctionLimiting, limitJunction, limitedExp, limitedExpSlope, thermalVoltage } from './junction.js';
+import { cachedByModel, isGiven, modelParameter } from './parameters.js';
 
 /** A diode is in breakdown when its junction is reversed beyond this fraction of BV… (ours, no source) */
 export const BREAKDOWN_VOLTAGE_FRACTION = 0.9;
@@ -18,6 +18,7 @@ export const BREAKDOWN_CURRENT_OVER_SATURATION = 10;
  * the same 3·vte edge at which SPICE3 switches its reverse formula (Quarles 1989).
  */
 export const OFF_BIAS_THERMAL_VOLTAGES = 3;
+const NO_DIAGNOSTICS: NetlistDiagnostic[] = [];
 /** ngspice's bisection of the breakdown knee stops after this many iterations (ngspice 39 diotemp.c). */
 const BREAKDOWN_KNEE_ITERATIONS = 25;
 
@@ -91,7 +92,7 @@ export class DiodeDevice implements Device {
   private warm = false;
 
   constructor(readonly element: DiodeElement) {
-    this.parameters = diodeParameters(element);
+    this.parameters = cachedByModel(diodeParameters, element);
   }
 
   setup(context: SetupContext): void {
@@ -166,28 +167,40 @@ export class DiodeDevice implements Device {
     this.warm = true;
   }
 
-  /** Junction current and conductance at junction voltage v, including gmin. */
-  private evaluate(v: number): { current: number; conductance: number } {
+  /** Junction current and conductance at junction voltage v, including gmin: left in `current` and `conductance` (no allocation per call). */
+  private current = 0;
+  private conductance = 0;
+  private evaluate(v: number): void {
     const vte = this.emissionThermalVoltage;
     const saturation = this.saturationCurrent;
     let current: number;
     let conductance: number;
-    if (v < -3 * vte && v < -this.knee) {
-      const x = -(this.knee + v) / this.breakdownThermalVoltage;
-      const e = limitedExp(x);
-      current = -saturation * e;
-      conductance = (saturation * Math.exp(Math.min(x, 100))) / this.breakdownThermalVoltage;
-    } else {
-      ({ current, conductance } = junctionCurrent(v, saturation, vte));
-      if (v >= -3 * vte && this.forwardKneeCurrent > 0 && current > 1e-18) {
+    if (v >= -3 * vte) {
+      // Shockley (SPICE3 forward region).
+      const x = v / vte;
+      current = saturation * (limitedExp(x) - 1);
+      conductance = (saturation * limitedExpSlope(x)) / vte;
+      if (this.forwardKneeCurrent > 0 && current > 1e-18) {
         // High injection (ngspice's IKF): i / (1 + sqrt(i / IKF)).
         const ikf = this.forwardKneeCurrent;
         const root = Math.sqrt(current / ikf);
         conductance = ((1 + root) * conductance - (current * conductance) / (2 * root * ikf)) / (1 + 2 * root + current / ikf);
         current = current / (1 + root);
       }
+    } else if (v >= -this.knee) {
+      // SPICE3 reverse region: a smooth cubic approach to −Is.
+      let arg = (3 * vte) / (v * Math.E);
+      arg = arg * arg * arg;
+      current = -saturation * (1 + arg);
+      conductance = (saturation * 3 * arg) / v;
+    } else {
+      // Breakdown: an exponential from the shifted knee.
+      const x = -(this.knee + v) / this.breakdownThermalVoltage;
+      current = -saturation * limitedExp(x);
+      conductance = (saturation * limitedExpSlope(x)) / this.breakdownThermalVoltage;
     }
-    return { current: current + this.gmin * v, conductance: conductance + this.gmin };
+    this.current = current + this.gmin * v;
+    this.conductance = conductance + this.gmin;
   }
 
   load(context: LoadContext): void {
@@ -200,17 +213,17 @@ export class DiodeDevice implements Device {
       const breakdownLimitEdge = Math.min(0, -this.knee + 10 * this.breakdownThermalVoltage);
       if (Number.isFinite(this.knee) && v < breakdownLimitEdge) {
         // Limit the step of the breakdown exponential as if it were a forward junction.
-        const limited = limitJunctionVoltage(-(v + this.knee), -(this.stateVoltage + this.knee), this.breakdownThermalVoltage, this.criticalVoltage);
-        v = -(limited.value + this.knee);
-        if (limited.limited) context.nonConvergent++;
+        const limited = limitJunction(-(v + this.knee), -(this.stateVoltage + this.knee), this.breakdownThermalVoltage, this.criticalVoltage);
+        v = -(limited + this.knee);
       } else {
-        const limited = limitJunctionVoltage(v, this.stateVoltage, this.emissionThermalVoltage, this.criticalVoltage);
-        v = limited.value;
-        if (limited.limited) context.nonConvergent++;
+        v = limitJunction(v, this.stateVoltage, this.emissionThermalVoltage, this.criticalVoltage);
       }
+      if (junctionLimiting.limited) context.nonConvergent++;
     }
     this.warm = false;
-    const { current, conductance } = this.evaluate(v);
+    this.evaluate(v);
+    const current = this.current;
+    const conductance = this.conductance;
     this.stateVoltage = v;
     this.stateCurrent = current;
     this.stateConductance = conductance;
@@ -245,7 +258,8 @@ export class DiodeDevice implements Device {
   report(solution: Float64Array, sink: DeviceResultSink): void {
     const junctionVoltage = solution[this.junctionAnode] - solution[this.cathode];
     const voltage = solution[this.anode] - solution[this.cathode];
-    const { current } = this.evaluate(junctionVoltage);
+    this.evaluate(junctionVoltage);
+    const current = this.current;
     sink.branch(this.element.name, current);
     sink.terminals(this.element.name, [current, -current]);
     sink.diode(this.element.name, { voltage, current, power: voltage * current, region: this.region(junctionVoltage, current) });
@@ -268,7 +282,7 @@ export class DiodeDevice implements Device {
   }
 
   solveDiagnostics(): NetlistDiagnostic[] {
-    return this.warnings.splice(0);
+    return this.warnings.length ? this.warnings.splice(0) : NO_DIAGNOSTICS;
   }
 
   /** Temperature-adjusted values at the last prepared corner, for the checks and tests. */

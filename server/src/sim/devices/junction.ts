@@ -27,18 +27,32 @@ export interface Limited {
  * negative steps.
  */
 export function limitJunctionVoltage(vNew: number, vOld: number, thermalVoltage: number, criticalVoltage: number): Limited {
+  const value = limitJunction(vNew, vOld, thermalVoltage, criticalVoltage);
+  return { value, limited: junctionLimiting.limited };
+}
+
+/** Whether the last limitJunction call cut its step (a module flag, so that the hot path allocates nothing). */
+export const junctionLimiting = { limited: false };
+
+/** limitJunctionVoltage without the result object: sets junctionLimiting.limited. */
+export function limitJunction(vNew: number, vOld: number, thermalVoltage: number, criticalVoltage: number): number {
   if (vNew > criticalVoltage && Math.abs(vNew - vOld) > thermalVoltage + thermalVoltage) {
+    junctionLimiting.limited = true;
     if (vOld > 0) {
       const arg = 1 + (vNew - vOld) / thermalVoltage;
-      return { value: arg > 0 ? vOld + thermalVoltage * Math.log(arg) : criticalVoltage, limited: true };
+      return arg > 0 ? vOld + thermalVoltage * Math.log(arg) : criticalVoltage;
     }
-    return { value: thermalVoltage * Math.log(vNew / thermalVoltage), limited: true };
+    return thermalVoltage * Math.log(vNew / thermalVoltage);
   }
   if (vNew < 0) {
     const floor = vOld > 0 ? -1 * vOld - 1 : 2 * vOld - 1;
-    if (vNew < floor) return { value: floor, limited: true };
+    if (vNew < floor) {
+      junctionLimiting.limited = true;
+      return floor;
+    }
   }
-  return { value: vNew, limited: false };
+  junctionLimiting.limited = false;
+  return vNew;
 }
 
 /** SPICE `fetlim`: limits a gate–source voltage step around the threshold (Nagel 1975). */

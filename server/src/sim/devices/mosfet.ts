@@ -7,7 +7,7 @@ import type { Mosfet } from '../../netlist/circuit.js';
 import { ZERO_CELSIUS_IN_KELVIN } from '../constants.js';
 import type { ConvergenceContext, CornerConditions, Device, DeviceResultSink, LoadContext, SetupContext } from '../mna.js';
 import { limitDrainVoltage, limitGateVoltage, limitJunctionVoltage, limitedExp, limitedExpSlope, criticalVoltage, potentialTemperatureTerm, siliconBandGap, thermalVoltage } from './junction.js';
-import { isGiven, modelParameter } from './parameters.js';
+import { cachedByModel, isGiven, modelParameter } from './parameters.js';
 
 /** Permittivity of silicon dioxide, F/m: 3.9 · ε0 (the value SPICE3 uses). */
 const OXIDE_PERMITTIVITY = 3.9 * 8.854214871e-12;
@@ -97,7 +97,7 @@ export class MosfetDevice implements Device {
   private warm = false;
 
   constructor(readonly element: Mosfet) {
-    this.parameters = mosfetParameters(element);
+    this.parameters = cachedByModel(mosfetParameters, element);
   }
 
   setup(context: SetupContext): void {

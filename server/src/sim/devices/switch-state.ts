@@ -100,6 +100,6 @@ export class SwitchState {
   }
 
   diagnostics(): NetlistDiagnostic[] {
-    return this.warnings.splice(0);
+    return this.warnings.length ? this.warnings.splice(0) : [];
   }
 }
