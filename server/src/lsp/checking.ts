@@ -4,18 +4,22 @@
 // (an include, a pnlint.json) re-checks the documents that read it.
 import { CancellationTokenSource, DiagnosticSeverity, type Connection, type Diagnostic, type TextDocuments } from 'vscode-languageserver';
 import type { TextDocument } from 'vscode-languageserver-textdocument';
-import { analyze, type Analysis } from '../analysis.js';
+import type { DiodeReport } from '../checks/index.js';
+import type { Finding } from '../findings.js';
 import { toDiagnostic } from './diagnostics.js';
 import type { RulePages } from './rule-pages.js';
 import type { ServerSettings } from './settings.js';
 import { uriKey, type Workspace } from './workspace.js';
 import { STATUS_NOTIFICATION, type StatusParams } from './protocol.js';
+import type { AnalysisRunner, RunResult } from './runner.js';
 
 /** The last published check of one document, kept for hover, code actions and the rest. */
 export interface Checked {
-  analysis: Analysis;
+  uri: string;
   /** The document version analysed. */
   version: number;
+  findings: Finding[];
+  diodes: DiodeReport[];
   settings: ServerSettings;
   /** uri → version of each open document read (undefined: read from disk). */
   versionsRead: Map<string, number | undefined>;
@@ -40,6 +44,7 @@ export class Checker {
     private readonly workspace: Workspace,
     private readonly settingsFor: (uri: string) => Promise<ServerSettings>,
     private readonly pages: RulePages,
+    private readonly runner: AnalysisRunner,
     /** Called after a document's check is published (the server refreshes inlay hints). */
     private readonly afterPublish: (uri: string) => void = () => {},
   ) {}
@@ -92,6 +97,7 @@ export class Checker {
     if (state?.timer) clearTimeout(state.timer);
     state?.running?.cancel();
     this.states.delete(uri);
+    this.runner.forget(uri);
     this.replaceContributions(uri, new Map(), undefined);
     this.recheckDependents(uri);
   }
@@ -110,33 +116,41 @@ export class Checker {
     }
     if (token.isCancellationRequested || this.documents.get(uri)?.version !== version) return;
 
-    const reader = this.workspace.createReader((message) => this.connection.console.info(message));
-    const config = this.workspace.readConfig(uri);
-    let analysis: Analysis;
+    const workspaceRoot = this.workspace.folderUriOf(uri);
+    let analysis: RunResult;
     try {
-      const workspaceRoot = this.workspace.folderUriOf(uri);
-      analysis = await analyze({
-        uri,
-        text: document.getText(),
-        files: reader,
-        settings: settings.core,
-        config,
-        cancellation: token,
-        // The reader refuses too (for every folder of a multi-root workspace); the pipeline says why at the include.
-        restricted: settings.core.restricted,
-        ...(workspaceRoot ? { workspaceRoot } : {}),
-      });
+      analysis = await this.runner.run(
+        {
+          uri,
+          text: document.getText(),
+          settings: settings.core,
+          config: this.workspace.readConfig(uri),
+          workspaceRoot,
+          folders: this.workspace.folderUris(),
+          openDocuments: this.documents.all().map((open) => ({ uri: open.uri, version: open.version, text: open.getText() })),
+        },
+        token,
+      );
     } catch (error) {
+      if (token.isCancellationRequested) return;
       this.reportInternalError(uri, version, error);
       return;
     }
     // Only the current text's results are shown: an edit since then has scheduled a newer check.
     if (token.isCancellationRequested || !analysis.complete || this.documents.get(uri)?.version !== version) return;
 
-    const dependencies = new Set<string>([...analysis.filesRead.map(uriKey), ...reader.asked]);
+    const dependencies = new Set<string>([...analysis.filesRead.map(uriKey), ...analysis.asked]);
     const configUri = this.workspace.configUriFor(uri);
     if (configUri) dependencies.add(uriKey(configUri));
-    const checked: Checked = { analysis, version, settings, versionsRead: reader.versions, dependencies };
+    const checked: Checked = {
+      uri,
+      version,
+      findings: analysis.findings,
+      diodes: analysis.diodes,
+      settings,
+      versionsRead: new Map(analysis.versionsRead),
+      dependencies,
+    };
     this.state(uri).checked = checked;
 
     const contributions = new Map<string, Diagnostic[]>();

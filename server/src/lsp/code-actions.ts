@@ -40,7 +40,7 @@ export function codeActions(context: FeatureContext, params: CodeActionParams, o
       if (diagnostic.source !== SOURCE || !isFindingReference(diagnostic.data)) continue;
       const checked = context.checker.latest(diagnostic.data.analyzed);
       if (!checked || checked.version !== diagnostic.data.version) continue;
-      const finding = checked.analysis.findings[diagnostic.data.index];
+      const finding = checked.findings[diagnostic.data.index];
       if (!finding) continue;
       if (isCurrent(context, checked)) {
         for (const fix of finding.fixes) {
@@ -69,7 +69,7 @@ function isCurrent(context: FeatureContext, checked: Checked): boolean {
   for (const [uri, version] of checked.versionsRead) {
     if (context.workspace.openDocument(uri)?.version !== version) return false;
   }
-  const main = context.documents.get(checked.analysis.uri);
+  const main = context.documents.get(checked.uri);
   return main?.version === checked.version;
 }
 
@@ -103,7 +103,8 @@ function lineEnding(document: TextDocument): string {
 
 function ignoreActions(context: FeatureContext, document: TextDocument, finding: Finding, diagnostic: Diagnostic, options: CodeActionOptions): CodeAction[] {
   if (UNIGNORABLE_RULES.has(finding.rule)) return [];
-  const findingDocument = context.workspace.openDocument(finding.location.uri);
+  const open = context.workspace.openDocument(finding.location.uri);
+  const findingDocument = open ? context.documents.get(open.uri) : undefined;
   // A directive goes into the file the finding is in; it can only be written there if it is open.
   if (!findingDocument) return [];
   const eol = lineEnding(findingDocument);
@@ -155,7 +156,7 @@ function fixAllAction(context: FeatureContext, document: TextDocument, options: 
   if (!checked || !isCurrent(context, checked)) return undefined;
   const taken: (LspTextEdit & { uri: string })[] = [];
   let fixes = 0;
-  for (const finding of checked.analysis.findings) {
+  for (const finding of checked.findings) {
     if (checked.settings.core.severities[finding.rule] === 'off') continue;
     const fix: Fix | undefined = finding.fixes.find((candidate) => candidate.preferred);
     if (!fix) continue;

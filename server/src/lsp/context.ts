@@ -25,8 +25,6 @@ export class FeatureContext {
 
   /** The document's syntax tree for its current text. */
   syntax(document: TextDocument): ParseResult {
-    const checked = this.checker.latest(document.uri);
-    if (checked && checked.version === document.version) return checked.analysis.syntax;
     const cached = this.parsed.get(document.uri);
     if (cached && cached.version === document.version) return cached.syntax;
     const syntax = parse(document.getText());
@@ -50,7 +48,7 @@ export class FeatureContext {
    * instance when the line is inside a subcircuit (`X1.D1`, `X2.D1`).
    */
   diodeReportsAt(document: TextDocument, line: number): DiodeReport[] {
-    const reports = this.current(document)?.analysis.check?.diodes ?? [];
+    const reports = this.current(document)?.diodes ?? [];
     const key = uriKey(document.uri);
     return reports.filter((report) => report.location.range.start.line === line && uriKey(report.location.uri) === key);
   }

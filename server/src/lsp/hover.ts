@@ -199,7 +199,7 @@ function describeElement(context: FeatureContext, document: TextDocument, elemen
     const reports = context.diodeReportsAt(document, element.range.start.line);
     for (const report of reports) lines.push('', describeDiodeReport(report, reports.length > 1));
     if (reports.length > 0) {
-      const caution = context.current(document)?.analysis.findings.find((finding) => finding.rule === HAZARD_RULE);
+      const caution = context.current(document)?.findings.find((finding) => finding.rule === HAZARD_RULE);
       if (caution) lines.push('', `> ${caution.message}`);
       return lines.join('\n');
     }

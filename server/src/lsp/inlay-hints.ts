@@ -19,7 +19,7 @@ function nominalReading(report: DiodeReport): string | undefined {
 export function inlayHints(context: FeatureContext, params: InlayHintParams): InlayHint[] {
   const document = context.documents.get(params.textDocument.uri);
   if (!document) return [];
-  const reports = context.current(document)?.analysis.check?.diodes ?? [];
+  const reports = context.current(document)?.diodes ?? [];
   const key = uriKey(document.uri);
   const byLine = new Map<number, DiodeReport[]>();
   for (const report of reports) {

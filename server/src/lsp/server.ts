@@ -22,6 +22,7 @@ import { inlayHints } from './inlay-hints.js';
 import { operatingPoint } from './operating-point.js';
 import { OPERATING_POINT_REQUEST, type InitializationOptions, type OperatingPointParams } from './protocol.js';
 import { RulePages } from './rule-pages.js';
+import { InlineRunner, WorkerRunner, type AnalysisRunner } from './runner.js';
 import { readServerSettings, type ServerSettings } from './settings.js';
 import { documentSymbols } from './symbols.js';
 import { CONFIG_FILE_NAME, uriKey, Workspace } from './workspace.js';
@@ -29,6 +30,11 @@ import { CONFIG_FILE_NAME, uriKey, Workspace } from './workspace.js';
 export interface ServerOptions {
   /** Where the rule pages are, when not beside the running script (see rule-pages.ts). */
   rulePagesDirectory?: string;
+  /**
+   * A script that runs the analysis worker when started as a worker thread (entry.ts is
+   * one). Without it, analyses run in the protocol thread.
+   */
+  analysisWorker?: URL;
 }
 
 /** Files whose change on disk can change a check: netlists, libraries, and pnlint.json. */
@@ -75,7 +81,8 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
   const refreshInlayHints = () => {
     if (capabilities.workspace?.inlayHint?.refreshSupport) void connection.languages.inlayHint.refresh().catch(() => undefined);
   };
-  const checker = new Checker(connection, documents, workspace, settingsFor, pages, refreshInlayHints);
+  const runner: AnalysisRunner = options.analysisWorker ? new WorkerRunner(options.analysisWorker, log) : new InlineRunner(log);
+  const checker = new Checker(connection, documents, workspace, settingsFor, pages, runner, refreshInlayHints);
   const context = new FeatureContext(connection, documents, workspace, checker);
 
   connection.onInitialize((params): InitializeResult => {
@@ -157,11 +164,17 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
   connection.languages.inlayHint.on(guarded(connection, 'inlay hints', [], (params) => inlayHints(context, params)));
   connection.onCompletion(guarded(connection, 'completion', [], (params) => completion(context, params)));
   connection.onCodeAction(guarded(connection, 'code actions', [], (params) => codeActions(context, params, { versionedEdits: versionedEdits() })));
-  connection.onRequest(
-    OPERATING_POINT_REQUEST,
-    guarded(connection, OPERATING_POINT_REQUEST, 'pnlint failed to build the report; see its output channel.\n', (params: OperatingPointParams) => operatingPoint(context, params)),
-  );
+  connection.onRequest(OPERATING_POINT_REQUEST, async (params: OperatingPointParams) => {
+    try {
+      return await operatingPoint(context, runner, params);
+    } catch (error) {
+      connection.console.error(`${OPERATING_POINT_REQUEST} failed: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`);
+      return 'pnlint could not build the operating-point report; see the pnlint output channel.\n';
+    }
+  });
 
+
+  connection.onShutdown(() => runner.dispose());
   documents.listen(connection);
   connection.listen();
 }

@@ -4,9 +4,20 @@
 import { readFileSync, statSync } from 'node:fs';
 import { dirname, isAbsolute, join, resolve, sep } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import type { TextDocuments } from 'vscode-languageserver';
-import type { TextDocument } from 'vscode-languageserver-textdocument';
 import type { FileReader } from '../netlist/circuit.js';
+
+/** An editor's document, as far as reading it goes. */
+export interface OpenDocument {
+  readonly uri: string;
+  readonly version: number;
+  getText(): string;
+}
+
+/** The open documents (the server's TextDocuments, or a snapshot of them in the analysis worker). */
+export interface DocumentSource {
+  get(uri: string): OpenDocument | undefined;
+  all(): OpenDocument[];
+}
 
 export const CONFIG_FILE_NAME = 'pnlint.json';
 
@@ -45,7 +56,12 @@ export class Workspace {
   /** Set from the client in an untrusted workspace: no include outside the folders is read. */
   restricted = false;
 
-  constructor(private readonly documents: TextDocuments<TextDocument>) {}
+  constructor(private readonly documents: DocumentSource) {}
+
+  /** The workspace folders as `file:` uris. */
+  folderUris(): string[] {
+    return this.folders.map((folder) => pathToFileURL(folder).href);
+  }
 
   setFolders(uris: readonly string[]): void {
     this.folders = uris.map(uriToPath).filter((path): path is string => path !== undefined);
@@ -65,7 +81,7 @@ export class Workspace {
   }
 
   /** The open document for `uri`, however the uri is spelled. */
-  openDocument(uri: string): TextDocument | undefined {
+  openDocument(uri: string): OpenDocument | undefined {
     const exact = this.documents.get(uri);
     if (exact) return exact;
     const key = uriKey(uri);
