@@ -33,10 +33,48 @@ const NUMBER_PREFIX = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?/;
 /** Powers of ten of the decimal scale factors, so that `10u` is exactly 1e-5 rather than 10 × 1e-6. */
 const DECIMAL_EXPONENTS: Readonly<Record<string, number>> = { t: 12, g: 9, meg: 6, k: 3, m: -3, u: -6, n: -9, p: -12, f: -15 };
 
+/** 10^0 … 10^22: the powers of ten that binary64 holds exactly. */
+const EXACT_POWERS_OF_TEN: readonly number[] = Array.from({ length: 23 }, (_unused, power) => Number(`1e${power}`));
+
+/**
+ * The common case without building a string: digits × 10^k, with the digits an integer of at most
+ * 15 figures and |k| ≤ 22, is one correctly rounded multiplication or division of exact operands,
+ * so it gives the very value that converting the decimal text gives. Undefined otherwise.
+ */
+function scaledExactly(mantissa: string, exponent: number): number | undefined {
+  let index = 0;
+  let sign = 1;
+  const first = mantissa.charCodeAt(0);
+  if (first === 45 /* - */) {
+    sign = -1;
+    index = 1;
+  } else if (first === 43 /* + */) index = 1;
+  let digits = 0;
+  let figures = 0;
+  let fractionFigures = 0;
+  let afterPoint = false;
+  for (; index < mantissa.length; index++) {
+    const code = mantissa.charCodeAt(index);
+    if (code === 46 /* . */) {
+      afterPoint = true;
+      continue;
+    }
+    if (code < 48 || code > 57) return undefined; // an exponent: the general path
+    digits = digits * 10 + (code - 48);
+    if (afterPoint) fractionFigures++;
+    if (++figures > 15) return undefined;
+  }
+  const power = exponent - fractionFigures;
+  if (power >= 0) return power <= 22 ? sign * digits * EXACT_POWERS_OF_TEN[power]! : undefined;
+  return -power <= 22 ? (sign * digits) / EXACT_POWERS_OF_TEN[-power]! : undefined;
+}
+
 function scaled(mantissa: string, scale: string): number {
   if (scale === '') return Number(mantissa);
   const exponent = DECIMAL_EXPONENTS[scale];
   if (exponent === undefined) return Number(mantissa) * SCALE_FACTORS[scale]!;
+  const exact = scaledExactly(mantissa, exponent);
+  if (exact !== undefined) return exact;
   // Shift the decimal exponent in the text: one correctly rounded conversion, not two.
   const [digits, written = '0'] = mantissa.toLowerCase().split('e');
   return Number(`${digits}e${Number(written) + exponent}`);

@@ -71,3 +71,31 @@ describe('scale factors (SPICE3 user\'s manual, Quarles 1989)', () => {
     expect(readSpiceNumber('-')).toBeUndefined();
   });
 });
+
+describe('scaled values are the correctly rounded decimal value', () => {
+  // Reference: ECMAScript Number() of the equivalent decimal text, which is correctly rounded
+  // (ECMA-262, "StringToNumber"); e.g. 10u is exactly the double nearest 1e-5.
+  const EXPONENTS: Record<string, number> = { t: 12, g: 9, meg: 6, k: 3, m: -3, u: -6, n: -9, p: -12, f: -15 };
+  test('10u is 1e-5 exactly, 4.7k is 4700, 0.1u is 1e-7', () => {
+    expect(readSpiceNumber('10u')!.value).toBe(1e-5);
+    expect(readSpiceNumber('4.7k')!.value).toBe(4700);
+    expect(readSpiceNumber('0.1u')!.value).toBe(1e-7);
+    expect(readSpiceNumber('-2.2n')!.value).toBe(-2.2e-9);
+  });
+
+  test('random mantissas and scale factors', async () => {
+    const fc = (await import('fast-check')).default;
+    fc.assert(
+      fc.property(
+        fc.stringMatching(/^[+-]?(\d{1,18}(\.\d{0,6})?|\.\d{1,6})(e[+-]?\d{1,2})?$/),
+        fc.constantFrom(...Object.keys(EXPONENTS)),
+        (mantissa, scale) => {
+          const [digits, written = '0'] = mantissa.split('e');
+          const expected = Number(`${digits}e${Number(written) + EXPONENTS[scale]!}`);
+          expect(readSpiceNumber(mantissa + scale)!.value).toBe(expected);
+        },
+      ),
+      { numRuns: 2000 },
+    );
+  });
+});
