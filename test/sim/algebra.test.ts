@@ -452,6 +452,27 @@ describe('SparseLU on MNA structures with zero diagonals', () => {
   });
 });
 
+describe('SparseLU limits', () => {
+  it('stops at a passed deadline or a cancellation, says so, and factors normally afterwards', () => {
+    const random = randomSource(8);
+    const entries = dominantSystem(600, 3, random);
+    const { matrix } = buildMatrix(600, entries);
+    const lu = new SparseLU(matrix);
+    const stopped = { ok: false, singularColumn: -1, reason: 'stopped' };
+    expect(lu.factor({ deadline: performance.now() - 1 })).toEqual(stopped);
+    expect(lu.factor({ cancellation: { isCancellationRequested: true } })).toEqual(stopped);
+    expect(lu.factor({ deadline: performance.now() + 60_000 })).toEqual({ ok: true });
+    // Now the refactorisation path: stopped too, then fine again, still on the first ordering.
+    expect(lu.factor({ cancellation: { isCancellationRequested: true } })).toEqual(stopped);
+    expect(Array.from(solveSparse(lu, new Array(600).fill(1))).every(Number.isNaN)).toBe(true);
+    expect(lu.factor()).toEqual({ ok: true });
+    expect(lu.statistics.orderings).toBe(1);
+    const exact = Array.from({ length: 600 }, (_, i) => Math.sin(i));
+    // Expected: the solution the right-hand side was built from.
+    expect(maxRelativeDifference(solveSparse(lu, product(600, entries, exact)), exact)).toBeLessThan(SOLUTION_TOLERANCE);
+  });
+});
+
 describe('SparseLU on singular matrices', () => {
   it('reports a structurally empty column without throwing', () => {
     // Column 2 has no entry at all.

@@ -7,21 +7,34 @@
 // pattern, with no search and no allocation. Only when a reused pivot fails
 // the threshold test does it choose the pivots afresh with the current values.
 import type { SparseMatrix } from './matrix.js';
-import { eliminateWithMarkowitz, type ColumnStructure, type EliminationFactors, type SingularReason } from './markowitz.js';
+import { eliminateWithMarkowitz, STOP_CHECK_INTERVAL, type ColumnStructure, type EliminationFactors, type SingularReason } from './markowitz.js';
 import { NUMERICAL_ZERO_RELATIVE, PIVOT_ACCEPTANCE_THRESHOLD } from './tolerances.js';
+import type { CancellationToken } from '../types.js';
 
 const NO_COLUMN = -1;
 
 /**
  * `reason` says why the column has no pivot: 'structural' (no entry left in it once the other
  * columns took their pivots: singular whatever the values), 'numerical' (its entries cancel to
- * rounding noise), 'not-finite' (it holds a NaN or an infinity).
+ * rounding noise), 'not-finite' (it holds a NaN or an infinity); or 'stopped', with column −1,
+ * when a limit from FactorOptions ended the factorisation (not a verdict on the matrix).
  */
-export type FactorResult = { ok: true } | { ok: false; singularColumn: number; reason?: SingularReason };
+export type FactorResult = { ok: true } | { ok: false; singularColumn: number; reason?: SingularReason | 'stopped' };
+
+/**
+ * Optional limits on one factorisation, for matrices whose fill could make it long.
+ * When one is hit, factor() returns { ok: false, singularColumn: -1, reason: 'stopped' }:
+ * not a singular matrix, and no column to blame.
+ */
+export interface FactorOptions {
+  /** A performance.now() time after which to give up. */
+  deadline?: number;
+  cancellation?: CancellationToken;
+}
 
 /** Counters for logs, benchmarks and tests. */
 export interface FactorStatistics {
-  /** How many times the pivots were chosen (first factorisation and every re-pivot). */
+  /** How many times the pivots were chosen, or the matrix found singular trying (first factorisation and every re-pivot). */
   orderings: number;
   /** How many times the kept pivot order was reused successfully. */
   refactorizations: number;
@@ -74,22 +87,29 @@ export class SparseLU {
    * symbolic structure; later calls reuse it, and re-pivot only when a reused pivot becomes
    * unacceptably small. Never throws on a singular matrix: reports the column.
    */
-  factor(): FactorResult {
+  factor(options: FactorOptions = {}): FactorResult {
     const matrix = this.matrix;
     if (!matrix.isFinalized) matrix.finalize();
     this.structure ??= compressByColumn(matrix);
     this.factored = false;
     const nonFinite = this.measureColumns();
     if (nonFinite !== NO_COLUMN) return { ok: false, singularColumn: nonFinite, reason: 'not-finite' };
-    if (this.hasOrdering && this.refactor()) {
-      this.counters.refactorizations++;
-      this.factored = true;
-      return { ok: true };
+    const { deadline, cancellation } = options;
+    const shouldStop = (): boolean => Boolean(cancellation?.isCancellationRequested) || (deadline !== undefined && performance.now() > deadline);
+    if (this.hasOrdering) {
+      const reused = this.refactor(shouldStop);
+      if (reused === 'stopped') return { ok: false, singularColumn: NO_COLUMN, reason: 'stopped' };
+      if (reused === 'done') {
+        this.counters.refactorizations++;
+        this.factored = true;
+        return { ok: true };
+      }
     }
-    this.counters.orderings++;
-    const result = eliminateWithMarkowitz(this.structure, matrix.values, this.columnScale);
+    this.hasOrdering = false;
+    const result = eliminateWithMarkowitz(this.structure, matrix.values, this.columnScale, shouldStop);
+    if (result.ok || !result.stopped) this.counters.orderings++;
     if (!result.ok) {
-      this.hasOrdering = false;
+      if (result.stopped) return { ok: false, singularColumn: NO_COLUMN, reason: 'stopped' };
       return { ok: false, singularColumn: result.singularColumn, reason: result.reason };
     }
     this.keep(result.factors);
@@ -155,10 +175,10 @@ export class SparseLU {
   }
 
   /**
-   * Left-looking LU into the kept pattern. Returns false, leaving the work
-   * array clean, as soon as a pivot fails the threshold test.
+   * Left-looking LU into the kept pattern. Gives up, leaving the work array
+   * clean, as soon as a pivot fails the threshold test or the caller's limit is hit.
    */
-  private refactor(): boolean {
+  private refactor(shouldStop: () => boolean): 'done' | 'pivot-failed' | 'stopped' {
     const n = this.size;
     const values = this.matrix.values;
     const work = this.work;
@@ -167,6 +187,7 @@ export class SparseLU {
     const columnAtStep = this.columnAtStep;
     const columnScale = this.columnScale;
     for (let k = 0; k < n; k++) {
+      if (k % STOP_CHECK_INTERVAL === 0 && shouldStop()) return 'stopped';
       for (let e = permutedStart[k], end = permutedStart[k + 1]; e < end; e++) work[permutedRow[e]] = values[permutedSlot[e]];
       // Rows above the pivot, in ascending order: each is final when reached, then updates the rows below it.
       const upperFirst = upperStart[k];
@@ -190,7 +211,7 @@ export class SparseLU {
         for (let e = upperFirst; e < upperEnd; e++) work[upperRow[e]] = 0;
         for (let e = lowerFirst; e < lowerEnd; e++) work[lowerRow[e]] = 0;
         work[k] = 0;
-        return false;
+        return 'pivot-failed';
       }
       for (let e = upperFirst; e < upperEnd; e++) {
         const j = upperRow[e];
@@ -205,7 +226,7 @@ export class SparseLU {
         work[i] = 0;
       }
     }
-    return true;
+    return 'done';
   }
 
   /** Turns the elimination's factors into the static, step-ordered structure that refactor() and solve() use. */

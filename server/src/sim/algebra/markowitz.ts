@@ -37,7 +37,11 @@ export type SingularReason = 'structural' | 'numerical' | 'not-finite';
 
 export type EliminationResult =
   | { ok: true; factors: EliminationFactors }
-  | { ok: false; singularColumn: number; reason: SingularReason };
+  | { ok: false; singularColumn: number; reason: SingularReason; stopped?: undefined }
+  | { ok: false; stopped: true };
+
+/** Steps between looks at the caller's deadline and cancellation (a look costs far less than the steps). */
+export const STOP_CHECK_INTERVAL = 256;
 
 const NONE = -1;
 
@@ -260,8 +264,9 @@ export function eliminateWithMarkowitz(
   structure: ColumnStructure,
   values: Float64Array,
   columnScale: Float64Array,
+  shouldStop: () => boolean = () => false,
 ): EliminationResult {
-  return new MarkowitzElimination(structure, values, columnScale).run();
+  return new MarkowitzElimination(structure, values, columnScale).run(shouldStop);
 }
 
 /** One elimination, its state in fields and each part of a step in its own small method. */
@@ -322,9 +327,10 @@ class MarkowitzElimination {
     this.updatedAt = new Int32Array(n);
   }
 
-  run(): EliminationResult {
+  run(shouldStop: () => boolean): EliminationResult {
     const n = this.size;
     for (let step = 0; step < n; step++) {
+      if (step % STOP_CHECK_INTERVAL === 0 && shouldStop()) return { ok: false, stopped: true };
       const singular = this.choosePivot();
       if (singular !== NONE) return { ok: false, singularColumn: singular, reason: this.singularReason };
       this.eliminate(step);
