@@ -74,6 +74,11 @@ describe('linear elements and sources', () => {
     expectKirchhoff(text, point);
   });
 
+  it('a 0 Ω resistor is solved as 1 mΩ: ngspice 39 draws 0.999000999000941 A from 1 V through 0 Ω + 1 Ω', () => {
+    const point = pointOf(`zero ohms\nV1 a 0 1\nR1 a b 0\nR2 b 0 1\n${TIGHT}\n.end\n`);
+    expect(point.branches.V1).toBeCloseTo(-0.999000999000941, 9); // ngspice 39
+  });
+
   it('an inductor is a short at DC and a capacitor an open (SPICE3 user’s manual, .op)', () => {
     const text = 'reactive\nV1 a 0 10\nL1 a b 1m\nR1 b c 1k\nC1 c 0 1u\nR2 c 0 1k\n.end\n';
     const point = pointOf(text);

@@ -130,6 +130,16 @@ describe('odd inputs never throw', () => {
     expect(result.ok).toBe(true);
   });
 
+  it('values that are not numbers leave their element open with a diagnostic, and the rest solves', () => {
+    const circuit = circuitOf('broken values\nV1 a 0 5\nR1 a b 1k\nR2 b 0 1k\nR3 a c 1k\nV2 c 0 1\n.end\n');
+    const elements = circuit.elements.map((e) => (e.name === 'R3' ? { ...e, resistance: Number.NaN } : e.name === 'V2' ? { ...e, dc: Number.NaN } : e));
+    const result = solveOperatingPoint(compileCircuit({ ...circuit, elements } as Circuit));
+    expect(messageOf(result, 'unmodeled-element')).toMatch(/R3.*not a finite number/);
+    expect(messageOf(result, 'unmodeled-element')).toMatch(/V2/);
+    expect(result.ok).toBe(true);
+    if (result.ok) expect(result.point.nodes.b).toBeCloseTo(2.5, 9); // 1k/1k divider (Ohm's law)
+  });
+
   it('random resistor, diode and source networks: each solves with KCL holding, or says why not', () => {
     let seed = 12345;
     const random = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);

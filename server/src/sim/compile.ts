@@ -76,6 +76,27 @@ function createDevice(element: Element): Device | undefined {
   }
 }
 
+/** The name of a value of the element that is not a finite number (NaN from a failed expression), if any. */
+function unreadableValue(element: Element): string | undefined {
+  const values: [string, number][] = [];
+  switch (element.type) {
+    case 'R': values.push(['resistance', element.resistance]); break;
+    case 'V':
+    case 'I': values.push(['DC value', element.dc]); break;
+    case 'E':
+    case 'F':
+    case 'G':
+    case 'H': values.push(['gain', element.gain]); break;
+    case 'D':
+    case 'Q': values.push(['area', element.area]); break;
+    case 'M': values.push(['W', element.width], ['L', element.length]); break;
+    default: break;
+  }
+  // An infinite resistance is a legitimate open circuit; NaN anywhere is not.
+  const bad = values.find(([name, value]) => Number.isNaN(value) || (name !== 'resistance' && !Number.isFinite(value)));
+  return bad?.[0];
+}
+
 /** How many nodes each element type needs (the rest of the solver indexes them freely). */
 const REQUIRED_NODES: Partial<Record<Element['type'], number>> = { R: 2, C: 2, L: 2, V: 2, I: 2, E: 4, G: 4, F: 2, H: 2, S: 4, W: 2, D: 2, Q: 3, M: 4 };
 
@@ -104,6 +125,11 @@ export function compileCircuit(circuit: Circuit): CompiledCircuit {
     const required = REQUIRED_NODES[element.type];
     if (required !== undefined && element.nodes.length < required) {
       leaveOpen(element, `it has ${element.nodes.length} nodes where ${required} are needed`);
+      continue;
+    }
+    const unreadable = unreadableValue(element);
+    if (unreadable) {
+      leaveOpen(element, `its ${unreadable} is not a finite number`);
       continue;
     }
     if (element.type === 'unmodeled') {

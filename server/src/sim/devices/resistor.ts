@@ -2,11 +2,8 @@
 import type { Resistor } from '../../netlist/circuit.js';
 import { conductanceSlots, stampConductance, type CornerConditions, type Device, type DeviceResultSink, type LoadContext, type SetupContext } from '../mna.js';
 
-/**
- * A zero resistance is solved as this many ohms (ngspice 39 does the same with a warning,
- * treating 0 Ω as 1 mΩ; from memory of its resistor setup).
- */
-export const MINIMUM_RESISTANCE = 1e-3;
+/** A resistance of exactly 0 Ω is solved as this many ohms, as ngspice 39 does (measured: 1 V across 0 Ω + 1 Ω draws 0.999001 A). */
+export const ZERO_RESISTANCE_SUBSTITUTE = 1e-3;
 
 export class ResistorDevice implements Device {
   readonly linear = true;
@@ -25,8 +22,9 @@ export class ResistorDevice implements Device {
 
   prepare(conditions: CornerConditions): void {
     let resistance = this.element.resistance * conditions.scaleOf(this.element.name);
-    if (!Number.isFinite(resistance) || Math.abs(resistance) < MINIMUM_RESISTANCE) resistance = resistance < 0 ? -MINIMUM_RESISTANCE : MINIMUM_RESISTANCE;
-    this.conductance = 1 / resistance;
+    if (resistance === 0) resistance = ZERO_RESISTANCE_SUBSTITUTE;
+    // An infinite (or unreadable) resistance is an open circuit.
+    this.conductance = Number.isFinite(resistance) ? 1 / resistance : 0;
   }
 
   load(context: LoadContext): void {
