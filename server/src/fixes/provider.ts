@@ -1,0 +1,133 @@
+// The two ways into the fixes: a FixProvider that checkCircuit calls for each finding's
+// request while it checks, and attachVerifiedFixes, which takes a finished check and gives
+// its findings their fixes afterwards (cheaper: the finished check is the baseline, fixes
+// are built only for findings that survived suppression, and every finding about an
+// element gets its ignore fix). Both build the same fixes the same way.
+import type { CheckResult, CornerPlan, FixProvider, FixRequest } from '../checks/index.js';
+import { checkCircuit } from '../checks/index.js';
+import type { Circuit, FileReader } from '../netlist/circuit.js';
+import type { WorkspaceConfig } from '../config.js';
+import type { Finding, Fix } from '../findings.js';
+import type { Settings } from '../settings.js';
+import { flipDiodeFixes } from './flip-diode.js';
+import { guardDiodeFixes } from './guard-diode.js';
+import { ignoreFix, verifiedIgnore, verifiedIgnoreFixes } from './ignore.js';
+import { currentLimitFixes } from './series-resistor.js';
+import { FixSession, type FixOptions, type FixStatistics } from './verify.js';
+import { zenerWindowFixes } from './zener-resistor.js';
+
+export interface RequestedFixes {
+  fixes: Fix[];
+  /** A sentence for the finding's message when no fix can exist (a zener with no window). */
+  note?: string;
+}
+
+/** The verified fixes for one request (at most one of each kind; none that failed its re-check). */
+export function fixesForRequest(session: FixSession, request: FixRequest, finding: Finding, plans: readonly CornerPlan[]): RequestedFixes {
+  if (!session.canVerify() && request.kind !== 'ignore') {
+    session.statistics.skipped++;
+    return { fixes: [] };
+  }
+  switch (request.kind) {
+    case 'limit-current':
+      return { fixes: currentLimitFixes(session, request, finding, plans) };
+    case 'zener-window':
+      return zenerWindowFixes(session, request, finding, plans);
+    case 'flip-diode':
+      return { fixes: flipDiodeFixes(session, request, finding) };
+    case 'anti-parallel-diode':
+      return { fixes: guardDiodeFixes(session, request, finding) };
+    case 'ignore': {
+      const fix = ignoreFix(session, finding, request.rule, request.element);
+      return { fixes: fix && verifiedIgnore(session, fix, finding) ? [fix] : [] };
+    }
+  }
+}
+
+/** Exactly one preferred fix when any real fix exists: the first; the ignore fix never is. */
+function ranked(fixes: Fix[]): Fix[] {
+  let preferredTaken = false;
+  return fixes.map((fix) => {
+    const preferred = fix.preferred && !preferredTaken;
+    if (preferred) preferredTaken = true;
+    return fix.preferred === preferred ? fix : { ...fix, preferred };
+  });
+}
+
+export type StatisticsProvider = FixProvider & { readonly statistics: FixStatistics };
+
+/**
+ * A FixProvider for `checkCircuit(circuit, settings, config, { fixProvider })`. The first call
+ * for a circuit checks it once without fixes, as the baseline that re-checks are compared with.
+ * When no fix can exist it adds the reason to the finding's message. The budget in `options`
+ * covers every call of this provider: make one per analysis.
+ */
+export function createFixProvider(reader: FileReader, config: WorkspaceConfig | undefined, options: FixOptions = {}): StatisticsProvider {
+  const sessions = new WeakMap<Circuit, FixSession>();
+  const statistics: FixStatistics = { verifications: 0, rejected: 0, skipped: 0, milliseconds: 0 };
+  const provider = (request: FixRequest, finding: Finding, context: { circuit: Circuit; settings: Settings; plans: readonly CornerPlan[] }): Fix[] => {
+    let session = sessions.get(context.circuit);
+    if (!session) {
+      const started = performance.now();
+      const baseline = checkCircuit(context.circuit, context.settings, config, options.cancellation ? { cancellation: options.cancellation } : {});
+      statistics.milliseconds += performance.now() - started;
+      session = new FixSession(context.circuit, baseline.findings, reader, context.settings, config, options, statistics);
+      sessions.set(context.circuit, session);
+    }
+    const result = fixesForRequest(session, request, finding, context.plans);
+    if (result.note) finding.message += result.note;
+    const fixes = [...result.fixes];
+    if (request.kind !== 'ignore') {
+      const ignore = ignoreFix(session, finding);
+      if (ignore && verifiedIgnore(session, ignore, finding)) fixes.push(ignore);
+    }
+    return ranked(fixes);
+  };
+  return Object.assign(provider, { statistics });
+}
+
+export interface AttachedFixes {
+  /** The check's findings, in order, each with its verified fixes (and any note in its message). */
+  findings: Finding[];
+  statistics: FixStatistics;
+}
+
+/**
+ * Gives a finished check's findings their verified fixes: each recorded request's fixes,
+ * then an ignore fix for every finding about an element. `settings` are the ones the check
+ * ran with; `circuit` is the circuit it checked (its `files` hold every text read).
+ */
+export function attachVerifiedFixes(
+  check: CheckResult,
+  circuit: Circuit,
+  reader: FileReader,
+  settings: Settings,
+  config: WorkspaceConfig | undefined,
+  options: FixOptions = {},
+): AttachedFixes {
+  const session = new FixSession(circuit, check.findings, reader, settings, config, options);
+  const requests = new Map<Finding, FixRequest[]>();
+  for (const { finding, request } of check.fixRequests) {
+    const list = requests.get(finding) ?? [];
+    list.push(request);
+    requests.set(finding, list);
+  }
+  const findings = check.findings.map((finding) => {
+    const fixes = [...finding.fixes];
+    let message = finding.message;
+    for (const request of requests.get(finding) ?? []) {
+      const result = fixesForRequest(session, request, finding, check.cornerPlans);
+      fixes.push(...result.fixes);
+      if (result.note) message += result.note;
+    }
+    return { ...finding, message, fixes };
+  });
+  const ignores = verifiedIgnoreFixes(session, check.findings);
+  return {
+    findings: findings.map((finding, index) => {
+      const ignore = ignores[index];
+      return { ...finding, fixes: ranked(ignore ? [...finding.fixes, ignore] : finding.fixes) };
+    }),
+    statistics: session.statistics,
+  };
+}

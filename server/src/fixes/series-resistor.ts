@@ -1,0 +1,127 @@
+// Limiting an LED's current with a resistor: inserted in series when there is none, or the
+// series resistor re-valued when there is one. The value comes from the circuit's Thevenin
+// view of the LED at the governing corner (Voc with the LED removed, Isc with it shorted,
+// Rth = Voc / Isc), the current aimed at below the LED's rating with margin, and the LED's
+// own forward voltage at that current (solved): R = (Voc − Vf) / I − Rth (Ohm's law). It is
+// rounded up within the preferred series, so that the current only falls, and re-simulated.
+import type { CornerPlan, FixRequest } from '../checks/index.js';
+import { readDirectives } from '../checks/directives.js';
+import { resistorRatings } from '../checks/ratings.js';
+import { LED_CURRENT_CHANGE_LIMIT, LED_FORWARD_VOLTAGE_SPREAD } from '../checks/thresholds.js';
+import type { Diode, Resistor } from '../netlist/circuit.js';
+import type { Finding, Fix, TextEdit } from '../findings.js';
+import { formatQuantity } from '../units.js';
+import { diodeVoltageAt, measureThevenin } from './probes.js';
+import { diodeExtremes, elementNamed, lowestScale, planNamed, resistorPower, scaleAt, solveOptionsOf } from './readings.js';
+import { changeResistorValue, insertSeriesResistor } from './resistor-lines.js';
+import {
+  LED_CURRENT_MARGIN,
+  MAXIMUM_CANDIDATES_PER_FINDING,
+  MAXIMUM_TARGET_REDUCTIONS,
+  preferredValuesFrom,
+  RESISTOR_POWER_MARGIN,
+  TARGET_REDUCTION,
+} from './values.js';
+import type { FixSession, Verified } from './verify.js';
+
+type LimitCurrent = Extract<FixRequest, { kind: 'limit-current' }>;
+
+/**
+ * The least voltage the resistor must drop for the LED to count as limited: the LED rule's own
+ * test (its forward-voltage spread must move the current by less than the change limit).
+ */
+export const LEAST_RESISTOR_DROP = LED_FORWARD_VOLTAGE_SPREAD / LED_CURRENT_CHANGE_LIMIT;
+
+export interface SeriesResistorDesign {
+  /** The least resistance (Ω, nominal) that keeps the current at or below `current` at the governing corner. */
+  leastResistance: number;
+  /** The current aimed at (A) and the LED's forward voltage there (V). */
+  current: number;
+  forwardVoltage: number;
+  openVoltage: number;
+  theveninResistance: number;
+}
+
+export function currentLimitFixes(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): Fix[] {
+  const diode = elementNamed(session.circuit, request.diode);
+  const plan = planNamed(plans, request.governingCorner);
+  if (!diode || diode.type !== 'D' || !plan || !Number.isFinite(request.maximumCurrent) || !(request.maximumCurrent > 0)) return [];
+  const existing = request.seriesResistors.map((name) => elementNamed(session.circuit, name)).find((element): element is Resistor => element?.type === 'R');
+  const design = designSeriesResistor(session, diode, request, existing, plan, plans);
+  if (!design) return [];
+  for (const value of preferredValuesFrom(design.leastResistance, session.settings.preferredSeries, MAXIMUM_CANDIDATES_PER_FINDING)) {
+    let edits: TextEdit[] | undefined;
+    let resistorName: string;
+    if (existing) {
+      edits = changeResistorValue(session, existing, value);
+      resistorName = existing.name;
+    } else {
+      const inserted = insertSeriesResistor(session, diode, value);
+      edits = inserted?.edits;
+      resistorName = inserted?.name ?? '';
+    }
+    if (!edits) return [];
+    const verdict = session.verify(edits, finding);
+    if (verdict.ok) return [{ title: title(verdict.verified, diode.name, resistorName, value, existing), preferred: true, edits }];
+    if (verdict.reason === 'budget' || verdict.reason === 'edit-failed') return [];
+  }
+  return [];
+}
+
+/** The value to start from: the least resistance, with the aimed current lowered while the supply leaves too little headroom. */
+export function designSeriesResistor(
+  session: FixSession,
+  diode: Diode,
+  request: LimitCurrent,
+  existing: Resistor | undefined,
+  plan: CornerPlan,
+  plans: readonly CornerPlan[],
+): SeriesResistorDesign | undefined {
+  const options = solveOptionsOf(session);
+  const thevenin = measureThevenin(session.circuit, diode, plan.corner, options);
+  if (!thevenin || !(thevenin.openVoltage > 0)) return undefined;
+  // What the rest of the loop contributes, the existing resistor (at this corner's value) taken out.
+  const existingAtCorner = existing ? existing.resistance * scaleAt(plan, existing.name) : 0;
+  const rest = Math.max(0, thevenin.resistance - existingAtCorner);
+  // The resistor at the low end of its tolerance must still be enough.
+  const lowScale = existing ? lowestScale(plans, existing.name) : 1 - session.settings.resistorTolerance;
+  const powerRating = existing
+    ? resistorRatings(existing, session.settings, readDirectives(session.circuit), session.config).power.value
+    : session.settings.defaultResistorPower;
+
+  let current = request.maximumCurrent * LED_CURRENT_MARGIN;
+  let loweredForPower = false;
+  for (let attempt = 0; attempt <= MAXIMUM_TARGET_REDUCTIONS; attempt++) {
+    if (request.minimumCurrent !== undefined && current < request.minimumCurrent) return undefined;
+    const forwardVoltage = diodeVoltageAt(session.circuit, diode, current, plan.corner, options);
+    if (forwardVoltage === undefined) return undefined;
+    const drop = thevenin.openVoltage - forwardVoltage;
+    if (drop >= LEAST_RESISTOR_DROP) {
+      // The resistor drops about `drop` at `current`; keep that within its power rating's margin.
+      // (Once lowered for power, the slightly larger drop at the lower current is accepted.)
+      const powerLimited = (RESISTOR_POWER_MARGIN * powerRating) / drop;
+      if (current > powerLimited && !loweredForPower) {
+        current = powerLimited;
+        loweredForPower = true;
+        continue;
+      }
+      const leastResistance = (drop / current - rest) / lowScale;
+      if (!(leastResistance > 0)) return undefined; // the loop already limits it below the aim
+      return { leastResistance, current, forwardVoltage, openVoltage: thevenin.openVoltage, theveninResistance: thevenin.resistance };
+    }
+    current *= TARGET_REDUCTION;
+  }
+  return undefined;
+}
+
+/** "Insert 150 Ω series resistor (LED 13.8 mA, resistor 29 mW)", with the re-check's numbers. */
+function title(verified: Verified, diode: string, resistor: string, value: number, existing: Resistor | undefined): string {
+  const current = diodeExtremes(verified, diode)?.forwardCurrent;
+  const power = resistorPower(verified, resistor);
+  const numbers = [current !== undefined ? `LED ${formatQuantity(current, 'A')}` : undefined, power !== undefined ? `resistor ${formatQuantity(power, 'W')}` : undefined]
+    .filter((each) => each !== undefined)
+    .join(', ');
+  const suffix = numbers ? ` (${numbers})` : '';
+  if (existing) return `Change ${existing.name} from ${formatQuantity(existing.resistance, 'Ω')} to ${formatQuantity(value, 'Ω')}${suffix}`;
+  return `Insert ${formatQuantity(value, 'Ω')} series resistor${suffix}`;
+}

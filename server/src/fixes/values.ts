@@ -1,0 +1,58 @@
+// Choosing a resistor's value: the margins a fix aims for, the window a value must fall in,
+// and the preferred values (IEC 60063) to try, in the order they are tried.
+import { preferredValue, preferredValuesBetween } from '../preferred.js';
+import type { PreferredSeries } from '../settings.js';
+
+/**
+ * An LED is given this fraction of its forward-current rating, and a resistor this fraction
+ * of its power rating: keep power below about 50–70 % of the rating (common practice, no
+ * source; shared/design/verification.md). An LED's power follows its current, since its
+ * forward voltage hardly moves.
+ */
+export const LED_CURRENT_MARGIN = 0.7;
+export const RESISTOR_POWER_MARGIN = 0.7;
+
+/** When the supply leaves too little headroom for the aimed current, aim this much lower, at most this many times (ours). */
+export const TARGET_REDUCTION = 0.5;
+export const MAXIMUM_TARGET_REDUCTIONS = 4;
+
+/** Preferred values tried for one finding, each one re-simulated (ours: a linear circuit needs the first). */
+export const MAXIMUM_CANDIDATES_PER_FINDING = 3;
+
+/** `count` preferred values at or above `minimum`, ascending. */
+export function preferredValuesFrom(minimum: number, series: PreferredSeries, count: number): number[] {
+  const values: number[] = [];
+  let next = preferredValue(minimum, series, 'up');
+  while (next !== undefined && values.length < count) {
+    values.push(next);
+    // The next one up: just above this one (the series are at least 0.5 % apart).
+    next = preferredValue(next * 1.001, series, 'up');
+  }
+  return values;
+}
+
+/** With no lower bound (no current limit above), values are looked for within a decade below the upper bound (ours). */
+export const UNBOUNDED_WINDOW_SPAN = 0.1;
+
+/** A window of acceptable resistances, with the corners that set each end. */
+export interface ResistanceWindow {
+  minimum: number;
+  maximum: number;
+  /** The corner whose condition sets the minimum / maximum (for messages). */
+  minimumCorner: string | undefined;
+  maximumCorner: string | undefined;
+}
+
+/**
+ * The preferred values inside a window, taken at their tolerance (value × (1 ± tolerance)
+ * stays inside), nearest the window's geometric middle first (most margin both ways).
+ */
+export function preferredValuesInside(window: ResistanceWindow, tolerance: number, series: PreferredSeries, count: number): number[] {
+  const high = window.maximum / (1 + tolerance);
+  const low = window.minimum > 0 ? window.minimum / (1 - tolerance) : high * UNBOUNDED_WINDOW_SPAN;
+  if (!(high > 0) || !(high >= low)) return [];
+  const middle = Math.sqrt(low * high);
+  return preferredValuesBetween(low, high, series)
+    .sort((a, b) => Math.abs(Math.log(a / middle)) - Math.abs(Math.log(b / middle)))
+    .slice(0, count);
+}

@@ -1,0 +1,174 @@
+// Re-simulation of a candidate fix: its edits applied to copies of the files, the copy
+// elaborated and checked again (without fixes, so no recursion), and the result compared
+// with the original check. A fix is kept only if its finding is gone and nothing new
+// appeared. Findings are compared by rule, element and kind, not by position, since the
+// inserted lines move everything below them. Bounded: a number of re-checks and a time
+// budget per analysis, and the caller's cancellation.
+import type { Circuit, FileReader, NetlistDiagnostic } from '../netlist/circuit.js';
+import { elaborate, type ElaborateOptions } from '../netlist/index.js';
+import { checkCircuit, type CheckResult } from '../checks/index.js';
+import { readDirectives } from '../checks/directives.js';
+import { applySuppressions } from '../checks/suppression.js';
+import type { WorkspaceConfig } from '../config.js';
+import { applyEdits } from '../edits.js';
+import type { Finding, TextEdit } from '../findings.js';
+import type { Settings } from '../settings.js';
+import type { CancellationToken } from '../sim/types.js';
+import { NameRegistry } from './names.js';
+import { SourceFiles } from './source-text.js';
+
+/** Re-checks allowed for the fixes of one analysis (ours: a few per finding for a handful of findings). */
+export const MAXIMUM_VERIFICATIONS = 40;
+/** Wall-clock budget for all the fixes of one analysis (ours: keeps a check with fixes near a second). */
+export const FIX_BUDGET_MILLISECONDS = 1500;
+
+export interface FixOptions {
+  /** The options the circuit was first elaborated with (restricted mode), used again for each copy. */
+  elaborate?: ElaborateOptions;
+  cancellation?: CancellationToken;
+  /** Re-checks allowed for one analysis; default MAXIMUM_VERIFICATIONS. */
+  maximumVerifications?: number;
+  /** Wall-clock budget for all fixes of one analysis, ms; default FIX_BUDGET_MILLISECONDS. */
+  budgetMilliseconds?: number;
+}
+
+/** What the fixes of one analysis cost, for the log and the benchmark. */
+export interface FixStatistics {
+  /** Full re-checks run (each elaborates and solves every corner). */
+  verifications: number;
+  /** Candidate fixes rejected by their re-check. */
+  rejected: number;
+  /** Requests left without a fix because the budget ran out or the analysis was cancelled. */
+  skipped: number;
+  milliseconds: number;
+}
+
+export interface Verified {
+  circuit: Circuit;
+  check: CheckResult;
+}
+
+export type Verdict = { ok: true; verified: Verified } | { ok: false; reason: 'target-remains' | 'new-finding' | 'edit-failed' | 'budget' };
+
+/** One analysis' worth of fix building: the original circuit, its findings, and the budget. */
+export class FixSession {
+  readonly files: SourceFiles;
+  readonly names: NameRegistry;
+  private readonly baseline: Map<string, number>;
+  private readonly deadline: number;
+  private readonly maximumVerifications: number;
+
+  constructor(
+    readonly circuit: Circuit,
+    baselineFindings: readonly Finding[],
+    private readonly reader: FileReader,
+    readonly settings: Settings,
+    readonly config: WorkspaceConfig | undefined,
+    readonly options: FixOptions,
+    /** Shared when several sessions spend one analysis' budget (the provider's case). */
+    readonly statistics: FixStatistics = { verifications: 0, rejected: 0, skipped: 0, milliseconds: 0 },
+  ) {
+    this.files = new SourceFiles(circuit);
+    this.names = NameRegistry.of(circuit, this.files);
+    this.baseline = countKeys(baselineFindings, circuit.diagnostics);
+    this.deadline = performance.now() + (options.budgetMilliseconds ?? FIX_BUDGET_MILLISECONDS);
+    this.maximumVerifications = options.maximumVerifications ?? MAXIMUM_VERIFICATIONS;
+  }
+
+  /** False once the budget is spent or the analysis is cancelled. */
+  canVerify(): boolean {
+    return !this.options.cancellation?.isCancellationRequested && this.statistics.verifications < this.maximumVerifications && performance.now() < this.deadline;
+  }
+
+  /** The circuit elaborated from the files with `edits` applied; undefined if an edit does not apply. */
+  elaborateEdited(edits: readonly TextEdit[]): Circuit | undefined {
+    const texts = new Map<string, string>();
+    for (const uri of new Set(edits.map((edit) => edit.uri))) {
+      const original = this.circuit.files.get(uri);
+      if (original === undefined) return undefined;
+      const edited = applyEdits(original, edits.filter((edit) => edit.uri === uri));
+      if (edited === undefined) return undefined;
+      texts.set(uri, edited);
+    }
+    const reader: FileReader = {
+      read: (uri) => texts.get(uri) ?? this.circuit.files.get(uri) ?? this.reader.read(uri),
+      resolve: (from, path) => this.reader.resolve(from, path),
+    };
+    const top = texts.get(this.circuit.uri) ?? this.circuit.files.get(this.circuit.uri);
+    if (top === undefined) return undefined;
+    return elaborate(this.circuit.uri, top, reader, this.options.elaborate ?? {});
+  }
+
+  /** Applies the edits to copies, re-checks, and says whether `target` is gone with nothing new. */
+  verify(edits: readonly TextEdit[], target: Finding): Verdict {
+    if (!this.canVerify()) {
+      this.statistics.skipped++;
+      return { ok: false, reason: 'budget' };
+    }
+    const started = performance.now();
+    try {
+      this.statistics.verifications++;
+      const circuit = this.elaborateEdited(edits);
+      if (!circuit) return this.reject('edit-failed');
+      const check = checkCircuit(circuit, this.settings, this.config, this.options.cancellation ? { cancellation: this.options.cancellation } : {});
+      if (this.options.cancellation?.isCancellationRequested) return { ok: false, reason: 'budget' };
+      if (check.findings.some((finding) => sameProblem(finding, target))) return this.reject('target-remains');
+      const after = countKeys(check.findings, circuit.diagnostics);
+      for (const [key, count] of after) {
+        if (count > (this.baseline.get(key) ?? 0)) return this.reject('new-finding');
+      }
+      return { ok: true, verified: { circuit, check } };
+    } finally {
+      this.statistics.milliseconds += performance.now() - started;
+    }
+  }
+
+  /**
+   * An ignore directive needs no re-simulation: the copy is elaborated and its directives read.
+   * Says which findings it suppresses, and whether it brought a directive diagnostic with it.
+   */
+  suppresses(edits: readonly TextEdit[], findings: readonly Finding[]): { suppressed: boolean[]; directiveProblems: boolean } {
+    const circuit = this.elaborateEdited(edits);
+    if (!circuit) return { suppressed: findings.map(() => false), directiveProblems: true };
+    const directives = readDirectives(circuit);
+    const directiveProblems = directives.findings.length > readDirectives(this.circuit).findings.length;
+    return { suppressed: findings.map((finding) => applySuppressions([finding], circuit, directives, this.config).length === 0), directiveProblems };
+  }
+
+  private reject(reason: 'target-remains' | 'new-finding' | 'edit-failed'): Verdict {
+    this.statistics.rejected++;
+    return { ok: false, reason };
+  }
+}
+
+/** The same problem: rule and element, or for a finding with no element, its kind. */
+export function sameProblem(finding: Finding, target: Finding): boolean {
+  if (finding.rule !== target.rule) return false;
+  if (target.element !== undefined) return finding.element !== undefined && finding.element.toLowerCase() === target.element.toLowerCase();
+  return findingKey(finding) === findingKey(target);
+}
+
+/**
+ * What identifies a finding across an edit: its rule, element and severity; a finding with no
+ * element (a caution, a directive or netlist diagnostic) by its message with the numbers
+ * taken out, since line numbers and values move.
+ */
+export function findingKey(finding: Pick<Finding, 'rule' | 'severity' | 'message' | 'element'>): string {
+  if (finding.element !== undefined) return `${finding.rule}|${finding.severity}|${finding.element.toLowerCase()}`;
+  return `${finding.rule}|${finding.severity}|${withoutNumbers(finding.message)}`;
+}
+
+/** A number, with the space and SI prefix before a unit symbol: `13.8 mA` and `980 µA` both become `#A`. */
+const NUMBER_WITH_PREFIX = /[-−]?\d+(?:\.\d+)?(?:e[-+]?\d+)?(?:\s?[fpnµumkMGT]?(?=[ΩVAWHF%°]))?/g;
+
+function withoutNumbers(message: string): string {
+  return message.replace(NUMBER_WITH_PREFIX, '#');
+}
+
+function countKeys(findings: readonly Finding[], diagnostics: readonly NetlistDiagnostic[]): Map<string, number> {
+  const counts = new Map<string, number>();
+  const add = (key: string) => counts.set(key, (counts.get(key) ?? 0) + 1);
+  for (const finding of findings) add(findingKey(finding));
+  for (const diagnostic of diagnostics) add(`netlist:${findingKey({ rule: diagnostic.code, severity: diagnostic.severity, message: diagnostic.message })}`);
+  return counts;
+}
