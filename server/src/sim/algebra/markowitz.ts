@@ -41,7 +41,7 @@ export type EliminationResult =
   | { ok: false; stopped: true };
 
 /** Steps between looks at the caller's deadline and cancellation (a look costs far less than the steps). */
-export const STOP_CHECK_INTERVAL = 256;
+export const STOP_CHECK_INTERVAL = 64;
 
 const NONE = -1;
 
