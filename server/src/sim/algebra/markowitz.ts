@@ -53,7 +53,6 @@ const NONE = -1;
  * eliminated. Elements are never moved; memory is linear in nonzeros plus fill.
  */
 class ActiveSubmatrix {
-  readonly size: number;
   elementRow: Int32Array;
   elementColumn: Int32Array;
   elementValue: Float64Array;
@@ -70,11 +69,9 @@ class ActiveSubmatrix {
   /** Element (i, i) while row i and column i are both active, else NONE. */
   private readonly diagonal: Int32Array;
   readonly columnActive: Uint8Array;
-  readonly rowActive: Uint8Array;
 
   constructor(structure: ColumnStructure, values: Float64Array) {
     const n = structure.size;
-    this.size = n;
     const capacity = Math.ceil(1.5 * structure.row.length) + 16;
     this.elementRow = new Int32Array(capacity);
     this.elementColumn = new Int32Array(capacity);
@@ -89,7 +86,6 @@ class ActiveSubmatrix {
     this.columnLength = new Int32Array(n);
     this.diagonal = new Int32Array(n).fill(NONE);
     this.columnActive = new Uint8Array(n).fill(1);
-    this.rowActive = new Uint8Array(n).fill(1);
     for (let j = 0; j < n; j++) {
       for (let e = structure.columnStart[j], end = structure.columnStart[j + 1]; e < end; e++) {
         this.add(structure.row[e], j, values[structure.slot[e]]);
@@ -461,7 +457,6 @@ class MarkowitzElimination {
     // The pivot row right of the pivot becomes row `step` of U; its elements leave their columns.
     this.upperStart[step] = this.upperColumn.length;
     this.rowBuckets.unlink(p);
-    active.rowActive[p] = 0;
     for (let e = active.rowFirst[p]; e !== NONE; e = active.nextElementInRow(e)) {
       const column = active.elementColumn[e];
       if (column === q) continue;
