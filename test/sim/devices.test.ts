@@ -104,6 +104,20 @@ describe('switches (ngspice 39 hysteresis rule)', () => {
   });
 });
 
+describe('current-controlled switches (ngspice 39 rule: at DC a W in its band is off, whatever its flag)', () => {
+  const text = (control: string, flag: string) =>
+    `current switch\nIC 0 c ${control}\nVS c 0 0\nV1 a 0 5\nR1 a b 1k\nW1 b 0 VS WMOD ${flag}\n.model WMOD CSW(IT=1m IH=0.2m RON=5 ROFF=1e5)\n.end\n`;
+  // ngspice 39 results for these netlists: off 4.95049504950495 V, on 0.02487562189054726 V.
+  it.each([
+    ['1.1m', '', 4.95049504950495],
+    ['1.1m', 'ON', 4.95049504950495],
+    ['1.5m', '', 0.02487562189054726],
+    ['1.5m', 'ON', 0.02487562189054726],
+  ])('control %s A, flag "%s": v(b) = %s V (ngspice 39)', (control, flag, expected) => {
+    expect(pointOf(text(control, flag)).nodes.b).toBeCloseTo(expected, 9);
+  });
+});
+
 describe('transistors by their defining equations', () => {
   it('NPN: with no Early effect or high injection, Ic = BF·Ib (Gummel–Poon, SPICE3 user’s manual)', () => {
     const text = `common emitter\nIB 0 b 10u\nVC c 0 5\nQ1 c b 0 QN\n.model QN NPN(IS=1e-15 BF=100)\n${TIGHT}\n.end\n`;

@@ -14,7 +14,7 @@ export class CurrentSwitchDevice implements Device {
   private readonly state: SwitchState;
 
   constructor(readonly element: CurrentSwitch) {
-    this.state = new SwitchState(element.name, element.location, element.initiallyOn);
+    this.state = new SwitchState(element.name, element.location, element.initiallyOn, false);
   }
 
   setup(context: SetupContext): void {

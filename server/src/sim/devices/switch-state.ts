@@ -2,7 +2,10 @@
 // applies it at a DC operating point: the first iteration takes the instance's ON/OFF
 // flag (off when absent); later iterations switch on above threshold + hysteresis and off
 // below threshold − hysteresis, holding their state in between. A negative hysteresis
-// is ngspice's "switch on entering the band from below" variant.
+// is ngspice's "switch on entering the band from below" variant. One difference between the
+// two, measured on ngspice 39: S remembers its state from the last iteration, but W at DC
+// remembers nothing (ngspice's current switch reads its previous state from the time step
+// before, which at an operating point is "off"), so a W in its band is off whatever its flag.
 import type { Model, NetlistDiagnostic, SourceLocation } from '../../netlist/circuit.js';
 import { modelParameter } from './parameters.js';
 
@@ -43,6 +46,8 @@ export class SwitchState {
     private readonly name: string,
     private readonly location: SourceLocation,
     private readonly initiallyOn: boolean | undefined,
+    /** True for S (state kept between iterations), false for W (see above). */
+    private readonly remembersState: boolean,
   ) {}
 
   reset(): void {
@@ -69,18 +74,19 @@ export class SwitchState {
       return false;
     }
     if (this.frozen) return false;
+    const memory = this.remembersState ? previous : State.ReallyOff;
     if (hysteresis > 0) {
       if (control > threshold + hysteresis) next = State.ReallyOn;
       else if (control < threshold - hysteresis) next = State.ReallyOff;
-      else next = previous;
+      else next = memory;
     } else if (control > threshold - hysteresis) {
       next = State.ReallyOn;
     } else if (control < threshold + hysteresis) {
       next = State.ReallyOff;
-    } else if (previous === State.HysteresisOff || previous === State.HysteresisOn) {
-      next = previous;
+    } else if (memory === State.HysteresisOff || memory === State.HysteresisOn) {
+      next = memory;
     } else {
-      next = previous === State.ReallyOn ? State.HysteresisOff : State.HysteresisOn;
+      next = memory === State.ReallyOn ? State.HysteresisOff : State.HysteresisOn;
     }
     if (next === previous) return false;
     const wasOn = this.on;

@@ -12,7 +12,7 @@ export class VoltageSwitchDevice implements Device {
   private readonly state: SwitchState;
 
   constructor(readonly element: VoltageSwitch) {
-    this.state = new SwitchState(element.name, element.location, element.initiallyOn);
+    this.state = new SwitchState(element.name, element.location, element.initiallyOn, true);
   }
 
   setup(context: SetupContext): void {
