@@ -3,7 +3,7 @@
 // code-server process group that is always ended. See
 // ../../../shared/design/editor-testing.md for why each step is the way it is.
 import { execFileSync, spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
 import { build } from 'esbuild';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
@@ -57,9 +57,21 @@ export function ensureNode24() {
   if (!existsSync(node24)) throw new Error(`npm install node@${NODE_MAJOR} did not produce ${node24}`);
 }
 
+/** npm's own script (npm-cli.js), to run it under a Node of our choice. */
+function npmCommandLine() {
+  const fromNpmRun = process.env.npm_execpath;
+  if (fromNpmRun && /npm-cli\.js$/.test(fromNpmRun) && existsSync(fromNpmRun)) return fromNpmRun;
+  const onPath = spawnSync('sh', ['-c', 'command -v npm'], { encoding: 'utf8' }).stdout.trim();
+  if (!onPath) throw new Error('npm is not on PATH');
+  return realpathSync(onPath);
+}
+
 function node24Environment() {
+  // Drop the outer `npm run`'s variables: npm reads npm_config_* as its own config, and
+  // code-server's install script checks the Node version in npm_config_user_agent.
+  const environment = Object.fromEntries(Object.entries(process.env).filter(([name]) => !/^npm_/i.test(name)));
   return {
-    ...process.env,
+    ...environment,
     PATH: `${join(node24Folder, 'node_modules/node/bin')}:${process.env.PATH}`,
     // Build the workbench's native modules against Node 24's headers, not the machine's Node 20.
     npm_config_nodedir: node24Headers,
@@ -72,7 +84,9 @@ export function ensureCodeServer() {
   rmSync(codeServerFolder, { recursive: true, force: true });
   mkdirSync(codeServerFolder, { recursive: true });
   writeFileSync(join(codeServerFolder, 'package.json'), '{ "private": true }\n');
-  run('npm', ['install', '--no-audit', '--no-fund', '--foreground-scripts', `code-server@${CODE_SERVER_VERSION}`], {
+  // npm itself runs under Node 24 here: its install scripts check the Node that runs them,
+  // and under `npm run` the outer npm's Node 20 would otherwise come first on their PATH.
+  run(node24, [npmCommandLine(), 'install', '--no-audit', '--no-fund', '--foreground-scripts', `code-server@${CODE_SERVER_VERSION}`], {
     cwd: codeServerFolder,
     env: node24Environment(),
   });
