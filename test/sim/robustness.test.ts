@@ -140,6 +140,13 @@ describe('odd inputs never throw', () => {
     if (result.ok) expect(result.point.nodes.b).toBeCloseTo(2.5, 9); // 1k/1k divider (Ohm's law)
   });
 
+  it('a malformed circuit object (an element without nodes) yields diagnostics, not an exception', () => {
+    const circuit = circuitOf('fine\nV1 a 0 5\nR1 a 0 1k\n.end\n');
+    const broken = { ...circuit, elements: [...circuit.elements, { ...circuit.elements[1], name: 'R9', nodes: undefined }] } as unknown as Circuit;
+    const result = solveOperatingPoint(compileCircuit(broken));
+    expect(result.diagnostics.length).toBeGreaterThan(0);
+  });
+
   it('random resistor, diode and source networks: each solves with KCL holding, or says why not', () => {
     let seed = 12345;
     const random = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);

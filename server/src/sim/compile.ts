@@ -101,6 +101,22 @@ function unreadableValue(element: Element): string | undefined {
 const REQUIRED_NODES: Partial<Record<Element['type'], number>> = { R: 2, C: 2, L: 2, V: 2, I: 2, E: 4, G: 4, F: 2, H: 2, S: 4, W: 2, D: 2, Q: 3, M: 4 };
 
 export function compileCircuit(circuit: Circuit): CompiledCircuit {
+  try {
+    return compileUnguarded(circuit);
+  } catch (error) {
+    // Never throw at the caller: report the bug as such and leave nothing to solve.
+    const empty = compileUnguarded({ ...circuit, elements: [], nodes: [GROUND] });
+    const diagnostic: NetlistDiagnostic = {
+      severity: 'warning',
+      code: 'unsolved-circuit',
+      message: `internal solver error while reading the circuit: ${error instanceof Error ? error.message : String(error)}`,
+      location: circuitLocation(circuit),
+    };
+    return { ...empty, circuit, diagnostics: [diagnostic], unsolvable: true };
+  }
+}
+
+function compileUnguarded(circuit: Circuit): CompiledCircuit {
   const diagnostics: NetlistDiagnostic[] = [];
   const unmodeledNodes = new Set<string>();
   const leaveOpen = (element: Element, reason: string, severity: 'warning' | 'info' = 'warning'): void => {
@@ -175,7 +191,7 @@ export function compileCircuit(circuit: Circuit): CompiledCircuit {
   for (let i = 1; i < builder.size; i++) if (builder.unknowns[i].kind !== 'branch') voltageDiagonals.push(builder.slot(i, i));
   const floatingDiagonals = [...structure.floatingNodes].map((name) => builder.slot(nodeIndex.get(name)!, nodeIndex.get(name)!));
 
-  const gmin = circuit.options.gmin ?? DEFAULT_GMIN;
+  const gmin = circuit.options?.gmin ?? DEFAULT_GMIN;
   const system = new CircuitSystem(builder, devices, Int32Array.from(voltageDiagonals), Int32Array.from(floatingDiagonals), gmin > 0 ? Math.min(gmin, FLOATING_NODE_CONDUCTANCE) : FLOATING_NODE_CONDUCTANCE);
 
   // The algebra's matrix, excluding ground: our slot k is its slot k − 1 when registered in order.

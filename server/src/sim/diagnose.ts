@@ -72,7 +72,7 @@ function listNames(names: string[]): string {
 /** A place to show a circuit-wide diagnostic: the given element's line, else the top of the file. */
 export function circuitLocation(circuit: Circuit, element?: Element): SourceLocation {
   if (element) return element.location;
-  const first = circuit.elements[0];
+  const first = circuit.elements?.[0];
   if (first) return first.location;
   return { uri: circuit.uri, range: { start: { line: 0, column: 0 }, end: { line: 0, column: 0 } } } as SourceLocation;
 }

@@ -190,18 +190,26 @@ function solveWithContinuation(compiled: CompiledCircuit, state: NewtonState, se
   const stop = (o: NewtonOutcome): boolean => o.status === 'cancelled' || o.status === 'budget';
 
   const initial = Float64Array.from(state.solution);
+  // Each strategy starts afresh from the caller's starting point, as ngspice restarts its states.
+  const restart = (): void => {
+    state.solution.set(initial);
+    for (const device of system.devices) {
+      device.reset?.();
+      if (!settings.initializeJunctions) device.warmStart?.(state.solution);
+    }
+  };
   const plain = run({});
   if (plain.status === 'converged' || stop(plain)) return { outcome: plain, method: 'newton', iterations: total };
   let lastFailure: NewtonOutcome = plain;
 
   // gmin stepping (ngspice's dynamic gmin): a shunt on every node, shrunk while Newton keeps converging.
-  state.solution.set(initial);
+  restart();
   const gmin = gminStepping(run, state, settings, tolerances);
   if (gmin.status === 'converged' || stop(gmin)) return { outcome: gmin, method: 'gmin-stepping', iterations: total };
   if (gmin.status !== 'iteration-limit') lastFailure = gmin;
 
   // Source stepping (ngspice's gillespie_src): ramp every independent source up from zero.
-  state.solution.set(initial);
+  restart();
   const source = sourceStepping(run, state, settings, tolerances);
   if (source.status === 'converged' || stop(source)) return { outcome: source, method: 'source-stepping', iterations: total };
   const reported = lastFailure.status === 'iteration-limit' ? source : lastFailure;
