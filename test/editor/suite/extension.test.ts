@@ -117,6 +117,17 @@ describe('pnlint in a real VS Code', () => {
       assert.ok(commands.includes(command), `command ${command} is registered`);
     }
     assert.equal(api.client()?.isRunning(), true, 'the language server is running');
+    const include = await vscode.workspace.openTextDocument(workspaceFile('indicator-parts.inc'));
+    assert.equal(include.languageId, 'spice-netlist', 'product.md: .inc files open as netlists too');
+  });
+
+  it('validates pnlint.json against the schema it ships', async () => {
+    const document = await vscode.workspace.openTextDocument(workspaceFile('json-schema/pnlint.json'));
+    await vscode.window.showTextDocument(document);
+    // "E7" is no IEC 60063 series: the schema allows only E6, E12, E24, E48, E96 and E192.
+    const problem = await waitFor('a schema diagnostic on "E7"', () =>
+      vscode.languages.getDiagnostics(document.uri).find((d) => document.getText(d.range).includes('E7')));
+    assert.ok(problem.severity <= vscode.DiagnosticSeverity.Warning);
   });
 
   it('marks the LED that has no current limit, as an error on its line', async () => {
@@ -140,6 +151,22 @@ describe('pnlint in a real VS Code', () => {
     if (!shipped) pending(this, `server/docs/rules/${LED_RULE}.md does not exist yet, so the extension ships no page to link to`);
     assert.ok(typeof finding.code === 'object', 'the diagnostic code carries a link');
     assert.equal((finding.code as { target: vscode.Uri }).target.fsPath, page.fsPath);
+  });
+
+  it('opens the rule page of the finding under the cursor', async function () {
+    const editor = await openNetlist('led-without-resistor.cir');
+    const finding = await ledFinding(editor.document);
+    const extension = vscode.extensions.getExtension(EXTENSION_ID)!;
+    const page = vscode.Uri.joinPath(extension.extensionUri, 'docs', 'rules', `${LED_RULE}.md`);
+    try {
+      await vscode.workspace.fs.stat(page);
+    } catch {
+      pending(this, `server/docs/rules/${LED_RULE}.md does not exist yet`);
+    }
+    editor.selection = new vscode.Selection(finding.range.start, finding.range.start);
+    await vscode.commands.executeCommand('pnlint.openRulePage');
+    await waitFor('a preview tab of the rule page', () =>
+      vscode.window.tabGroups.all.flatMap((group) => group.tabs).find((tab) => tab.label.includes(LED_RULE)));
   });
 
   it('reports the findings count and the solve time for the status bar', async () => {
