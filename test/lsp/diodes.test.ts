@@ -50,6 +50,14 @@ describe('diodes in the editor', () => {
     expect(hints[0]!.label).toBe('8.94 mA, 2.05 V');
   });
 
+  it('the operating-point request returns the report with the solved diode', async () => {
+    const text = await client.request<string>('pnlint/operatingPoint', { uri: workspace.uri('indicator.cir') });
+    // ngspice 39, nominal: i(D1) = 8.941794 mA, v(a) = 2.049208 V.
+    expect(text).toContain('8.94 mA');
+    expect(text).toContain('2.05 V');
+    expect(text).toContain('D1');
+  });
+
   it('an ignore action above the element line, with its indentation, silences that rule only', async () => {
     const uri = workspace.uri('lamp.cir');
     client.open(uri, UNLIMITED);

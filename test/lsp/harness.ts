@@ -1,5 +1,6 @@
 // A real LSP client for the protocol tests: spawns the built server over stdio and
 // speaks to it with vscode-languageserver-protocol's node connection.
+// PNLINT_SERVER_ENTRY=<script> runs the same tests against another build (e.g. the extension's bundle).
 import { spawn, type ChildProcessWithoutNullStreams } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync, mkdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -14,7 +15,7 @@ import {
   type TextDocumentContentChangeEvent,
 } from 'vscode-languageserver-protocol/node.js';
 
-export const SERVER_ENTRY = fileURLToPath(new URL('../../server/dist/lsp/entry.js', import.meta.url));
+export const SERVER_ENTRY = process.env['PNLINT_SERVER_ENTRY'] ?? fileURLToPath(new URL('../../server/dist/lsp/entry.js', import.meta.url));
 
 export interface StartOptions {
   folders?: string[];

@@ -30,11 +30,9 @@ describe('responsiveness', () => {
     const uri = workspace.uri('big.cir');
     client.open(uri, BIG);
     await new Promise((resolve) => setTimeout(resolve, 300));
-    const sent = Date.now();
     await client.request('textDocument/hover', { textDocument: { uri }, position: { line: 3, character: 1 } });
-    // Answered before the check finished, and promptly (a generous bound for a loaded 2-core machine).
+    // Answered while the check still runs: in the protocol thread it would have waited for it.
     expect(client.publishedFor(uri)).toEqual([]);
-    expect(Date.now() - sent).toBeLessThan(1_000);
     client.closeDocument(uri);
   });
 
@@ -42,16 +40,13 @@ describe('responsiveness', () => {
     const uri = workspace.uri('edited.cir');
     client.open(uri, BIG);
     await new Promise((resolve) => setTimeout(resolve, 300));
-    const started = Date.now();
     client.change(uri, 2, [{ text: SMALL }]);
     const published = await client.diagnostics(uri, { version: 2 });
-    const waited = Date.now() - started;
     expect(published.version).toBe(2);
     // The small text has nothing to report (and no internal error stands in for its check).
     expect(published.diagnostics).toEqual([]);
-    // Version 1 is never published: its analysis was stopped.
     expect(client.publishedFor(uri).map((p) => p.version)).toEqual([2]);
-    // Well under the many seconds the big panel's check takes: the old analysis did not run on.
-    expect(waited).toBeLessThan(3_000);
+    // Version 1's analysis was stopped part-way (by its cancellation flag, or by replacing its worker), not run to the end.
+    expect(client.logs.some((line) => line.includes(`check of ${uri} (version 1) stopped early`))).toBe(true);
   });
 });

@@ -136,8 +136,12 @@ export class Checker {
       this.reportInternalError(uri, version, error);
       return;
     }
+    if (!analysis.complete) {
+      this.connection.console.info(`check of ${uri} (version ${version}) stopped early: the text changed`);
+      return;
+    }
     // Only the current text's results are shown: an edit since then has scheduled a newer check.
-    if (token.isCancellationRequested || !analysis.complete || this.documents.get(uri)?.version !== version) return;
+    if (token.isCancellationRequested || this.documents.get(uri)?.version !== version) return;
 
     const dependencies = new Set<string>([...analysis.filesRead.map(uriKey), ...analysis.asked]);
     const configUri = this.workspace.configUriFor(uri);

@@ -39,19 +39,18 @@ export function codeActions(context: FeatureContext, params: CodeActionParams, o
     for (const diagnostic of params.context.diagnostics) {
       if (diagnostic.source !== SOURCE || !isFindingReference(diagnostic.data)) continue;
       const checked = context.checker.latest(diagnostic.data.analyzed);
-      if (!checked || checked.version !== diagnostic.data.version) continue;
+      // Edits are placed by the text they were computed from: none from an older text.
+      if (!checked || checked.version !== diagnostic.data.version || !isCurrent(context, checked)) continue;
       const finding = checked.findings[diagnostic.data.index];
       if (!finding) continue;
-      if (isCurrent(context, checked)) {
-        for (const fix of finding.fixes) {
-          actions.push({
-            title: fix.title,
-            kind: CodeActionKind.QuickFix,
-            diagnostics: [diagnostic],
-            isPreferred: fix.preferred,
-            edit: workspaceEdit(context, fix.edits.map(toLspEdit), options),
-          });
-        }
+      for (const fix of finding.fixes) {
+        actions.push({
+          title: fix.title,
+          kind: CodeActionKind.QuickFix,
+          diagnostics: [diagnostic],
+          isPreferred: fix.preferred,
+          edit: workspaceEdit(context, fix.edits.map(toLspEdit), options),
+        });
       }
       actions.push(...ignoreActions(context, document, finding, diagnostic, options));
     }
