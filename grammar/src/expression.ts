@@ -7,7 +7,7 @@
 import { createToken, EmbeddedActionsParser, EOF, Lexer, type IToken, type TokenType } from 'chevrotain';
 import type { Expr, Range } from './ast.js';
 import type { LineIndex } from './positions.js';
-import { readSpiceNumber } from './values.js';
+import { readSpiceValue } from './values.js';
 
 const Blank = createToken({ name: 'Blank', pattern: /[ \t\r\n\f\v\uFEFF]+/, group: Lexer.SKIPPED });
 const NumberLiteral = createToken({ name: 'NumberLiteral', pattern: /(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?[A-Za-z_]*/ });
@@ -182,7 +182,7 @@ class ExpressionParser extends EmbeddedActionsParser {
           const token = this.CONSUME(NumberLiteral);
           return this.ACTION(() => ({
             kind: 'num' as const,
-            value: readSpiceNumber(token.image)?.value ?? Number.NaN,
+            value: readSpiceValue(token.image) ?? Number.NaN,
             text: token.image,
             range: this.tokenRange(token),
           }));

@@ -22,7 +22,7 @@ import {
   Word,
 } from './lexer.js';
 import type { LineIndex } from './positions.js';
-import { readSpiceNumber } from './values.js';
+import { readSpiceValue } from './values.js';
 
 export interface FieldLine {
   fields: Field[];
@@ -53,8 +53,8 @@ export class FieldMaker {
   wordOrNumber(token: IToken): WordField | NumberField {
     const text = token.image;
     if (beginsLikeNumber(text)) {
-      const reading = readSpiceNumber(text);
-      if (reading) return { kind: 'number', text, value: reading.value, range: this.tokenRange(token) };
+      const value = readSpiceValue(text);
+      if (value !== undefined) return { kind: 'number', text, value, range: this.tokenRange(token) };
     }
     return { kind: 'word', text, range: this.tokenRange(token) };
   }

@@ -165,7 +165,8 @@ export class StatementBuilder {
       this.maker.report('an element line starts with the element name', at);
       return undefined;
     }
-    return { kind: 'element', name, letter: name.text[0]!.toUpperCase(), fields: fields.slice(1), range };
+    fields.shift(); // the array is ours; shifting spares a copy per line
+    return { kind: 'element', name, letter: name.text[0]!.toUpperCase(), fields, range };
   }
 
   private asWord(field: Field | undefined): WordField | undefined {

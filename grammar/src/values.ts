@@ -95,6 +95,42 @@ export function readSpiceNumber(text: string): SpiceNumber | undefined {
   return { value: scaled(mantissa, scale.toLowerCase()), mantissa, scale, ignored: rest };
 }
 
+const SCALE_EXPONENT_BY_LETTER: Readonly<Record<string, number>> = { t: 12, g: 9, k: 3, m: -3, u: -6, n: -9, p: -12, f: -15 };
+
+/**
+ * `readSpiceNumber(text)?.value`, without building the parts: the parser calls it for every
+ * number of a file. Mantissas with an exponent, and `meg`/`mil`, take the full reader.
+ */
+export function readSpiceValue(text: string): number | undefined {
+  let index = 0;
+  let code = text.charCodeAt(0);
+  if (code === 43 || code === 45) code = text.charCodeAt(++index);
+  let digitsSeen = false;
+  while (code >= 48 && code <= 57) {
+    digitsSeen = true;
+    code = text.charCodeAt(++index);
+  }
+  if (code === 46) {
+    code = text.charCodeAt(++index);
+    while (code >= 48 && code <= 57) {
+      digitsSeen = true;
+      code = text.charCodeAt(++index);
+    }
+  }
+  if (!digitsSeen) return undefined;
+  if (Number.isNaN(code)) return Number(text);
+  const lower = code | 0x20;
+  if (lower === 101 /* e */) return readSpiceNumber(text)?.value;
+  const exponent = SCALE_EXPONENT_BY_LETTER[String.fromCharCode(lower)];
+  if (exponent === undefined) return Number(text.slice(0, index));
+  if (lower === 109 /* m */) {
+    const next = text.charCodeAt(index + 1) | 0x20;
+    if (next === 101 /* e */ || next === 105 /* i */) return readSpiceNumber(text)?.value; // meg, mil
+  }
+  const mantissa = text.slice(0, index);
+  return scaledExactly(mantissa, exponent) ?? scaled(mantissa, String.fromCharCode(lower));
+}
+
 /**
  * True when the ignored tail holds a digit: `4k7`, `2R2`, `22x0k`. The engine's reading
  * then differs from what the writer most likely meant.

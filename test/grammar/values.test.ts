@@ -99,3 +99,19 @@ describe('scaled values are the correctly rounded decimal value', () => {
     );
   });
 });
+
+describe('readSpiceValue, the parser\'s value-only path', () => {
+  test('gives readSpiceNumber\'s value for any word (whose values are checked against the manual above)', async () => {
+    const { readSpiceValue } = await import('@pnlint/grammar');
+    const fc = (await import('fast-check')).default;
+    const word = fc
+      .array(fc.constantFrom('0', '1', '4', '7', '9', '.', '+', '-', 'e', 'E', 'k', 'K', 'm', 'M', 'meg', 'Meg', 'mil', 'u', 'n', 'p', 'f', 'g', 't', 'x', 'Ohm', 'F', 'V', 'A', '_'), { maxLength: 8 })
+      .map((parts) => parts.join(''));
+    fc.assert(
+      fc.property(word, (text) => {
+        expect(Object.is(readSpiceValue(text), readSpiceNumber(text)?.value), text).toBe(true);
+      }),
+      { numRuns: 5000 },
+    );
+  });
+});
