@@ -55,6 +55,11 @@ describe('nodes with no DC path to ground', () => {
     expect(compileCircuit(circuitOf(text)).floatingNodes).toEqual(new Set(['c', 'd']));
   });
 
+  it('a current source into a capacitor-only node: floating-node says there is no operating point there', () => {
+    const result = solveText('charging forever\nI1 0 x 1m\nC1 x 0 1u\nV1 a 0 5\nR1 a 0 1k\n.end\n');
+    expect(messageOf(result, 'floating-node')).toMatch(/I1 drives current into it.*no DC operating point/);
+  });
+
   it('a MOSFET gate tied to nothing else is floating', () => {
     const result = solveText('open gate\nV1 d 0 5\nM1 d g 0 0 NM\n.model NM NMOS(VTO=1 KP=1m)\n.end\n');
     expect(messageOf(result, 'floating-node')).toMatch(/node g\b/);

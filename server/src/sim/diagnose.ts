@@ -157,13 +157,17 @@ export function diagnoseStructure(circuit: Circuit, active: Element[], nodeIndex
   for (const nodes of islands.values()) {
     const elements = [...new Set(nodes.flatMap((n) => elementsOnNode.get(index(n)) ?? []))];
     const subject = nodes.length === 1 ? `node ${nodes[0]} has` : `nodes ${listNames(nodes)} have`;
+    const islandNodes = new Set(nodes);
+    const driver = elements.find((e) => (e.type === 'I' || e.type === 'G' || e.type === 'F') && e.nodes.slice(0, 2).some((n) => islandNodes.has(n)));
     diagnostics.push({
       severity: 'warning',
       code: 'floating-node',
       message:
         `${subject} no DC path to ground` +
         (elements.length ? ` (connected only through ${listNames(elements.map((e) => e.name))})` : ' (nothing simulated is connected)') +
-        `; ${nodes.length === 1 ? 'its voltage is' : 'their voltages are'} undetermined at DC and solved as if tied to ground through a negligible conductance`,
+        (driver
+          ? `; ${driver.name} drives current into it with nowhere to go, so it has no DC operating point and the voltages shown there are meaningless`
+          : `; ${nodes.length === 1 ? 'its voltage is' : 'their voltages are'} undetermined at DC and solved as if tied to ground through a negligible conductance`),
       location: circuitLocation(circuit, elements[0]),
       related: elements.slice(1, MAXIMUM_NAMES_IN_MESSAGE).map((e) => ({ location: e.location, message: `${e.name} is on the floating node` })),
     });
