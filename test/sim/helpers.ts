@@ -16,10 +16,16 @@ export function solveText(text: string, corner?: Corner, options?: SolveOptions)
   return solveOperatingPoint(compileCircuit(circuitOf(text)), corner, options);
 }
 
-/** Solves and insists on success; the message carries the diagnostics otherwise. */
+/**
+ * Solves and insists on success; the message carries the diagnostics otherwise. Every point
+ * solved this way is also checked against Kirchhoff's current law (see expectKirchhoff) at
+ * the circuit's own reltol (SPICE3 default 1e-3) of the largest current at each node, plus 1 nA.
+ */
 export function pointOf(text: string, corner?: Corner, options?: SolveOptions): OperatingPoint {
   const result = solveText(text, corner, options);
   if (!result.ok) throw new Error(`did not solve: ${result.diagnostics.map((d) => `${d.code}: ${d.message}`).join('; ')}`);
+  const circuit = circuitOf(text);
+  expectKirchhoff(text, result.point, circuit.options.reltol ?? 1e-3, 1e-9, false);
   return result.point;
 }
 
@@ -27,9 +33,11 @@ export function pointOf(text: string, corner?: Corner, options?: SolveOptions): 
  * Kirchhoff's current law at every node, to `absolute` amperes plus `relative` of the largest
  * current meeting at that node (the Newton tolerances bound how far a converged solution may miss).
  */
-export function expectKirchhoff(text: string, point: OperatingPoint, relative = 1e-6, absolute = 1e-9): void {
+export function expectKirchhoff(text: string, point: OperatingPoint, relative = 1e-6, absolute = 1e-9, requireNodes = true): void {
   const circuit = circuitOf(text);
   const residuals = kirchhoffCurrentResiduals(circuit, point);
+  // Floating nodes are tied down by the solver's own shunt, which no element reports.
+  for (const node of compileCircuit(circuit).floatingNodes) delete residuals[node];
   const scale = new Map<string, number>();
   for (const element of circuit.elements) {
     element.nodes.forEach((node, i) => {
@@ -38,7 +46,7 @@ export function expectKirchhoff(text: string, point: OperatingPoint, relative = 
     });
   }
   const nodes = Object.keys(residuals);
-  if (nodes.length === 0) throw new Error('no node to check');
+  if (nodes.length === 0 && requireNodes) throw new Error('no node to check');
   for (const node of nodes) {
     const limit = absolute + relative * (scale.get(node) ?? 0);
     if (!(Math.abs(residuals[node]) <= limit)) throw new Error(`KCL fails at node ${node}: residual ${residuals[node]} A > ${limit} A`);
