@@ -83,6 +83,9 @@ export interface CheckResult {
   fixRequests: { finding: Finding; request: FixRequest }[];
 }
 
+/** Wall-clock budget for all counterfactual solves of one check (ours: keeps an edit-time check responsive). */
+export const COUNTERFACTUAL_BUDGET_MILLISECONDS = 3000;
+
 /** Diagnostics of the netlist and the solver that say what could not be checked (passed through). */
 const HONESTY_CODES: ReadonlySet<string> = new Set(['unknown-model', 'unmodeled-element', 'floating-node', 'unsolved-circuit']);
 
@@ -132,6 +135,21 @@ export function checkWith(
     }
   }
 
+  // Counterfactual solves (a diode flipped, a probe in its place) share one budget, so that a
+  // netlist with thousands of suspects still finishes; what the budget leaves out is reported.
+  const counterfactualStarted = performance.now();
+  let counterfactualsSkipped = 0;
+  const remainingBudget = () => COUNTERFACTUAL_BUDGET_MILLISECONDS - (performance.now() - counterfactualStarted);
+  const withinBudget = () => {
+    const inBudget = remainingBudget() > 0 && !options.cancellation?.isCancellationRequested;
+    if (!inBudget) counterfactualsSkipped++;
+    return inBudget;
+  };
+  /** Solve options whose per-corner budget cannot overrun what is left of the counterfactual budget. */
+  const counterfactualOptions = (corners: number): SolveOptions => {
+    const share = Math.max(1, remainingBudget() / Math.max(1, corners));
+    return { ...solveOptions, budgetMilliseconds: Math.min(solveOptions.budgetMilliseconds ?? Number.POSITIVE_INFINITY, share) };
+  };
   const fixRequests: { finding: Finding; request: FixRequest }[] = [];
   const context: CheckContext = {
     circuit,
@@ -142,8 +160,9 @@ export function checkWith(
     resistors,
     topology,
     hasReactiveElements: circuit.elements.some((element) => element.type === 'C' || element.type === 'L'),
-    solveVariant: (variant, variantPlans) => solve(variant, variantPlans.map((plan) => plan.corner), solveOptions),
-    theveninView: (diode, at) => theveninView(circuit, diode, at, solve, solveOptions),
+    solveVariant: (variant, variantPlans) =>
+      withinBudget() ? solve(variant, variantPlans.map((plan) => plan.corner), counterfactualOptions(variantPlans.length)) : [],
+    theveninView: (diode, at) => (withinBudget() ? theveninView(circuit, diode, at, solve, counterfactualOptions(2)) : undefined),
     fixesFor: (request, finding): Fix[] => {
       fixRequests.push({ finding, request });
       if (!options.fixProvider) return [];
@@ -158,6 +177,17 @@ export function checkWith(
   for (const rule of RULES) {
     if (options.cancellation?.isCancellationRequested) break;
     findings.push(...rule.check(context));
+  }
+  if (counterfactualsSkipped > 0 && circuit.elements[0]) {
+    findings.push(
+      makeFinding(
+        'unsolved-circuit',
+        'info',
+        `${counterfactualsSkipped} counterfactual solves (a diode turned around, or probed for its current limit) were left out: they took longer than ${COUNTERFACTUAL_BUDGET_MILLISECONDS / 1000} s in all. ` +
+          'Some reversed or unlimited diodes may not be reported.',
+        { uri: circuit.uri, range: circuit.elements[0].location.range },
+      ),
+    );
   }
   findings.push(...hazardCautions(circuit, solves));
 

@@ -9,6 +9,8 @@ export interface Topology {
   connections: Map<string, Element[]>;
   /** Nodes held by an ideal voltage source to ground (supply rails), ground included. */
   rails: Set<string>;
+  /** The end nodes of each inductor with its series chain, for freewheel detection. */
+  inductorSpans: [string, string][];
 }
 
 /** The terminals of an element that carry DC current. */
@@ -43,7 +45,7 @@ export function buildTopology(circuit: Circuit): Topology {
   for (const element of circuit.elements) {
     if (element.type === 'V' && element.nodes.includes(GROUND)) for (const node of element.nodes) rails.add(node);
   }
-  return { connections, rails };
+  return { connections, rails, inductorSpans: inductorSpans(connections, rails, circuit.elements) };
 }
 
 const otherNode = (element: Element, node: string) => (element.nodes[0] === node ? element.nodes[1] : element.nodes[0]);
@@ -88,23 +90,24 @@ export function seriesResistors(topology: Topology, element: Element): Resistor[
  */
 export function bridgesInductor(topology: Topology, element: Element): boolean {
   const [first, second] = element.nodes;
-  for (const candidate of topology.connections.get(first!) ?? []) {
-    if (candidate === element || currentNodes(candidate).length !== 2) continue;
-    const path: Element[] = [candidate];
-    let node = otherNode(candidate, first!);
-    let previous = candidate;
-    const visited = new Set<string>([first!]);
-    while (node !== undefined && node !== second && !visited.has(node) && !topology.rails.has(node)) {
-      visited.add(node);
-      const others = (topology.connections.get(node) ?? []).filter((each) => each !== previous);
-      if (others.length !== 1 || currentNodes(others[0]!).length !== 2) break;
-      previous = others[0]!;
-      path.push(previous);
-      node = otherNode(previous, node);
-    }
-    if (node === second && path.some((each) => each.type === 'L')) return true;
+  return topology.inductorSpans.some((span) => (span[0] === first && span[1] === second) || (span[0] === second && span[1] === first));
+}
+
+/** The two end nodes of each inductor's series chain (the coil with whatever is in series with it). */
+function inductorSpans(connections: Map<string, Element[]>, rails: Set<string>, elements: readonly Element[]): [string, string][] {
+  const partial: Topology = { connections, rails, inductorSpans: [] };
+  const spans: [string, string][] = [];
+  for (const element of elements) {
+    if (element.type !== 'L') continue;
+    const ends = element.nodes.slice(0, 2).map((node) => {
+      const chain = seriesChain(partial, element, node);
+      let end = node;
+      for (const next of chain) end = otherNode(next, end) ?? end;
+      return end;
+    });
+    spans.push([ends[0]!, ends[1]!]);
   }
-  return false;
+  return spans;
 }
 
 /**

@@ -26,6 +26,11 @@ export const ledCurrentUnlimited: Rule = {
       const where = atCorner(worst.at.plan);
       const related = [...cornerSources(context, worst.at.plan), ...seriesResistorsOf(context, diode)];
       const rating = diode.ratings.if;
+      const overRating = rating !== undefined && worst.value > rating.value;
+      // Resistance in series adds to what the LED sees: enough of it settles the question without a probe solve.
+      const seriesResistance = seriesResistors(context.topology, diode.element).reduce((sum, resistor) => sum + resistor.resistance, 0);
+      const smallestLimit = LED_FORWARD_VOLTAGE_SPREAD / (LED_CURRENT_CHANGE_LIMIT * worst.value);
+      if (!overRating && seriesResistance >= smallestLimit) continue;
       const thevenin = context.theveninView(diode, worst.at);
       const request = {
         kind: 'limit-current' as const,
@@ -36,7 +41,7 @@ export const ledCurrentUnlimited: Rule = {
         governingCorner: worst.at.plan.corner.name,
         ...(thevenin ? { thevenin } : {}),
       };
-      if (rating && worst.value > rating.value) {
+      if (rating && overRating) {
         const limit = thevenin && thevenin.resistance < 1 ? ': nothing in its loop limits the current' : '';
         const finding = makeFinding(
           ID,
@@ -52,7 +57,6 @@ export const ledCurrentUnlimited: Rule = {
       // Within its rating now, but is anything setting the current besides the LED itself?
       // (LEDs in parallel look like a low resistance to each other: shared-led-resistor speaks for them.)
       if (!thevenin || inParallelWithAnotherLed(context, diode)) continue;
-      const smallestLimit = LED_FORWARD_VOLTAGE_SPREAD / (LED_CURRENT_CHANGE_LIMIT * worst.value);
       if (thevenin.resistance >= smallestLimit) continue;
       const seen = thevenin.resistance === 0 ? 'an ideal source holds its terminals' : `the circuit around it looks like ${formatQuantity(thevenin.resistance, 'Ω')}`;
       const finding = makeFinding(

@@ -2,10 +2,11 @@
 // never conducts, but would carry a plausible current turned around, is reversed. One
 // that would short a supply turned around is an intentional clamp and is left alone. And
 // a clamp or freewheel diode that a DC supply drives forward, shorting it, is reversed.
-import type { Diode } from '../../netlist/circuit.js';
+import type { Diode, Element } from '../../netlist/circuit.js';
+import type { CornerPlan } from '../corners.js';
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
-import { atCorner, replaceElement, type CheckContext, type CheckedDiode } from '../context.js';
+import { atCorner, type CheckContext, type CheckedDiode } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { bridgesInductor, currentNodes } from '../topology.js';
 import {
@@ -26,16 +27,26 @@ export const reversedDiode: Rule = {
   id: ID,
   check(context: CheckContext): Finding[] {
     const findings: Finding[] = [];
+    const partners = conductingPartners(context);
+    const suspects: CheckedDiode[] = [];
     for (const diode of context.diodes) {
       if (diode.kind === 'zener' || diode.unchecked) continue; // a zener works reversed; zener-forward covers the other way
-      const finding = drivenForwardIntoShort(context, diode) ?? neverConducts(context, diode);
-      if (!finding) continue;
-      finding.fixes = context.fixesFor({ kind: 'flip-diode', rule: ID, diode: diode.element.name }, finding);
-      findings.push(finding);
+      const finding = drivenForwardIntoShort(context, diode);
+      if (finding) findings.push(finding);
+      else if (isSuspect(context, diode, partners)) suspects.push(diode);
     }
+    const flippedCurrents = solveFlipped(context, suspects);
+    for (const diode of suspects) {
+      const finding = reversedVerdict(context, diode, flippedCurrents.get(diode));
+      if (finding) findings.push(finding);
+    }
+    for (const finding of findings) finding.fixes = context.fixesFor({ kind: 'flip-diode', rule: ID, diode: finding.element! }, finding);
     return findings;
   },
 };
+
+/** Beyond this many suspects, they are turned around together in one solve rather than one solve each (ours: bounds the cost). */
+export const SEPARATE_FLIP_LIMIT = 4;
 
 /** A freewheel diode conducting at DC, or any diode carrying a supply-short current through next to no resistance. */
 function drivenForwardIntoShort(context: CheckContext, diode: CheckedDiode): Finding | undefined {
@@ -69,21 +80,42 @@ function drivenForwardIntoShort(context: CheckContext, diode: CheckedDiode): Fin
   );
 }
 
-function neverConducts(context: CheckContext, diode: CheckedDiode): Finding | undefined {
+/** An LED or series diode that conducts at no corner, and is not in a position where that is by design. */
+function isSuspect(context: CheckContext, diode: CheckedDiode, partners: ConductingPartners): boolean {
   const worst = worstCorner(diode, forwardCurrent);
-  if (!worst || worst.value >= CONDUCTION_THRESHOLD) return undefined;
+  if (!worst || worst.value >= CONDUCTION_THRESHOLD) return false;
+  const element = diode.element;
+  if (diode.kind !== 'led' && !isSeriesDiode(context, element)) return false;
+  if (bridgesInductor(context.topology, element)) return false; // a freewheel diode is reverse-biased at DC by design
+  return !hasConductingPartner(partners, diode); // diode-OR or reverse-protection partner
+}
+
+/**
+ * Each suspect's largest current with it turned around, and the corner where it flows. A few
+ * suspects are flipped one at a time; many are flipped together in one solve.
+ */
+function solveFlipped(context: CheckContext, suspects: readonly CheckedDiode[]): Map<CheckedDiode, { current: number; plan: CornerPlan }> {
+  const currents = new Map<CheckedDiode, { current: number; plan: CornerPlan }>();
+  const groups = suspects.length <= SEPARATE_FLIP_LIMIT ? suspects.map((diode) => [diode]) : [suspects];
+  for (const group of groups) {
+    const flips = new Map<Element, Diode>(group.map((diode) => [diode.element, { ...diode.element, nodes: [diode.element.nodes[1]!, diode.element.nodes[0]!] }]));
+    const variant = { ...context.circuit, elements: context.circuit.elements.map((element) => flips.get(element) ?? element) };
+    const results = context.solveVariant(variant, context.plans);
+    results.forEach((result, index) => {
+      if (!result.ok) return;
+      for (const diode of group) {
+        const current = result.point.diodes[diode.element.name]?.current;
+        const best = currents.get(diode);
+        if (current !== undefined && (!best || current > best.current)) currents.set(diode, { current, plan: context.plans[index]! });
+      }
+    });
+  }
+  return currents;
+}
+
+function reversedVerdict(context: CheckContext, diode: CheckedDiode, best: { current: number; plan: CornerPlan } | undefined): Finding | undefined {
   const element = diode.element;
   const isLed = diode.kind === 'led';
-  if (!isLed && !isSeriesDiode(context, element)) return undefined;
-  if (bridgesInductor(context.topology, element)) return undefined; // a freewheel diode is reverse-biased at DC by design
-  if (hasConductingPartner(context, diode)) return undefined; // diode-OR or reverse-protection partner
-  const flipped: Diode = { ...element, nodes: [element.nodes[1]!, element.nodes[0]!] };
-  const results = context.solveVariant(replaceElement(context.circuit, element, flipped), context.plans);
-  let best: { current: number; plan: (typeof context.plans)[number] } | undefined;
-  results.forEach((result, index) => {
-    const current = result.ok ? result.point.diodes[element.name]?.current : undefined;
-    if (current !== undefined && (!best || current > best.current)) best = { current, plan: context.plans[index]! };
-  });
   if (!best || best.current < PLAUSIBLE_CURRENT) return undefined; // dark either way: unpowered, or switched off
   if (!isLed && best.current >= SUPPLY_SHORT_CURRENT) return undefined; // turned around it would short a supply: an intentional clamp
   const nominal = diode.corners[0];
@@ -103,17 +135,30 @@ function isSeriesDiode(context: CheckContext, element: CheckedDiode['element']):
   return element.nodes.some((node) => !context.topology.rails.has(node) && (context.topology.connections.get(node)?.length ?? 0) === 2);
 }
 
+/** The conducting diodes, indexed by their anode and cathode nodes. */
+interface ConductingPartners {
+  byAnode: Map<string, CheckedDiode[]>;
+  byCathode: Map<string, CheckedDiode[]>;
+}
+
+function conductingPartners(context: CheckContext): ConductingPartners {
+  const partners: ConductingPartners = { byAnode: new Map(), byCathode: new Map() };
+  for (const diode of context.diodes) {
+    if (!diode.corners.some((at) => at.point.current >= CONDUCTION_THRESHOLD)) continue;
+    const [anode, cathode] = diode.element.nodes as [string, string];
+    partners.byAnode.set(anode, [...(partners.byAnode.get(anode) ?? []), diode]);
+    partners.byCathode.set(cathode, [...(partners.byCathode.get(cathode) ?? []), diode]);
+  }
+  return partners;
+}
+
 /** Another diode that conducts and shares this one's cathode or anode (diode-OR), or sits anti-parallel to it (reverse protection). */
-function hasConductingPartner(context: CheckContext, diode: CheckedDiode): boolean {
-  const [anode, cathode] = diode.element.nodes;
-  return context.diodes.some((other) => {
-    if (other === diode || !other.corners.some((at) => at.point.current >= CONDUCTION_THRESHOLD)) return false;
-    const [otherAnode, otherCathode] = other.element.nodes;
-    const antiParallel = otherAnode === cathode && otherCathode === anode;
-    const sameCathode = otherCathode === cathode && otherAnode !== anode;
-    const sameAnode = otherAnode === anode && otherCathode !== cathode;
-    return antiParallel || sameCathode || sameAnode;
-  });
+function hasConductingPartner(partners: ConductingPartners, diode: CheckedDiode): boolean {
+  const [anode, cathode] = diode.element.nodes as [string, string];
+  const antiParallel = (partners.byAnode.get(cathode) ?? []).some((other) => other.element.nodes[1] === anode);
+  const sameCathode = (partners.byCathode.get(cathode) ?? []).some((other) => other !== diode && other.element.nodes[0] !== anode);
+  const sameAnode = (partners.byAnode.get(anode) ?? []).some((other) => other !== diode && other.element.nodes[1] !== cathode);
+  return antiParallel || sameCathode || sameAnode;
 }
 
 function inductorAcross(context: CheckContext, diode: CheckedDiode) {
