@@ -264,10 +264,10 @@ function inversePermutation(order: Int32Array): Int32Array {
   return inverse;
 }
 
+/** Renumbers in place (the elimination's arrays are ours to reuse) and returns the same array. */
 function renumber(indices: Int32Array, newNumber: Int32Array): Int32Array {
-  const renumbered = new Int32Array(indices.length);
-  for (let e = 0; e < indices.length; e++) renumbered[e] = newNumber[indices[e]];
-  return renumbered;
+  for (let e = 0; e < indices.length; e++) indices[e] = newNumber[indices[e]];
+  return indices;
 }
 
 /** P·A·Q by columns, rows in step order, each entry pointing back at its slot in the matrix's values. */

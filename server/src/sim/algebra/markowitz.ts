@@ -225,8 +225,9 @@ class GrowingInt32 {
     }
     this.data[this.length++] = value;
   }
+  /** A view of the filled part (no copy: allocations of typed arrays prompt garbage collections). */
   trimmed(): Int32Array {
-    return this.data.slice(0, this.length);
+    return this.data.subarray(0, this.length);
   }
 }
 
@@ -245,7 +246,7 @@ class GrowingFloat64 {
     this.data[this.length++] = value;
   }
   trimmed(): Float64Array {
-    return this.data.slice(0, this.length);
+    return this.data.subarray(0, this.length);
   }
 }
 
