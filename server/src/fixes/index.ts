@@ -3,7 +3,7 @@
 // is gone and nothing new appeared.
 export { attachVerifiedFixes, createFixProvider, fixesForRequest, type AttachedFixes, type RequestedFixes, type StatisticsProvider } from './provider.js';
 export { FixSession, findingKey, sameProblem, FIX_BUDGET_MILLISECONDS, MAXIMUM_VERIFICATIONS, type FixOptions, type FixStatistics, type Verdict, type Verified } from './verify.js';
-export { designSeriesResistor, LEAST_RESISTOR_DROP, type SeriesResistorDesign } from './series-resistor.js';
+export { designSeriesResistor, AIM_TOLERANCE, LEAST_RESISTOR_DROP, type SeriesResistorDesign } from './series-resistor.js';
 export { zenerWindow, MAXIMUM_FEED_CANDIDATES, type ZenerWindow } from './zener-resistor.js';
 export { GUARD_DIODE_PARAMETERS } from './guard-diode.js';
 export { UNIGNORABLE_RULES } from './ignore.js';
@@ -15,7 +15,6 @@ export {
   MAXIMUM_TARGET_REDUCTIONS,
   MAXIMUM_CANDIDATES_PER_FINDING,
   UNBOUNDED_WINDOW_SPAN,
-  preferredValuesFrom,
   preferredValuesInside,
   type ResistanceWindow,
 } from './values.js';

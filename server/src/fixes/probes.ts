@@ -92,14 +92,15 @@ export function diodeVoltageAt(circuit: Circuit, diode: Diode, current: number, 
 /**
  * With the diode held at `voltage` (anode to cathode) by an ideal source, the diode's current
  * as a function of one resistor's value R, at one corner. With the diode held, the rest is
- * linear (for a linear rest), so superposition gives I(R) = base + gain / (R + portResistance):
- * `base` with the resistor open, and the resistor's port seen by Thevenin (its open voltage
- * over its short current).
+ * linear (for a linear rest), so superposition gives I(R) = base + gain / (R + portResistance).
+ * The resistor is replaced by a test current source (a short would close a loop of ideal
+ * sources wherever the supply and the held diode are ideal): at 0 A it gives `base` and the
+ * port's open voltage, at `testCurrent` the port's resistance and the diode's share.
  */
 export interface ResistorResponse {
   /** The diode's forward current (A) with the resistor open. */
   base: number;
-  /** The diode's extra current with the resistor shorted, times the port resistance (V·A/A = V). */
+  /** The diode's share of the resistor's current times the port's open voltage (V). */
   gain: number;
   /** Resistance the resistor sees (Ω). */
   portResistance: number;
@@ -110,29 +111,45 @@ export function measureResistorResponse(
   diode: Diode,
   voltage: number,
   resistor: Resistor,
+  testCurrent: number,
   corners: readonly Corner[],
   options: SolveOptions,
 ): (ResistorResponse | undefined)[] {
   const held = heldAt(circuit, diode, voltage, `Vhold_${diode.name.replace(/\./g, '_')}`);
   const withHold = replaceElement(circuit, diode, held);
+  // The open resistor keeps the port's nodes defined; the test source drives the port as the resistor would (first node to second).
   const open = openCircuit(withHold, resistor, `Ropen_${resistor.name.replace(/\./g, '_')}`);
-  const short = heldAt(withHold, resistor, 0, `Vshort_${resistor.name.replace(/\./g, '_')}`);
-  const opened = solveCorners(replaceElement(withHold, resistor, open), [...corners], options);
-  const shorted = solveCorners(replaceElement(withHold, resistor, short), [...corners], options);
+  const withOpen = replaceElement(withHold, resistor, open);
+  const test: CurrentSource = {
+    type: 'I',
+    name: freshName(withOpen, `Itest_${resistor.name.replace(/\./g, '_')}`),
+    nodes: [resistor.nodes[0]!, resistor.nodes[1]!],
+    dc: 0,
+    waveform: undefined,
+    location: resistor.location,
+    instances: resistor.instances,
+  };
+  const variant: Circuit = { ...withOpen, elements: [...withOpen.elements, test] };
+  const atZero = solveCorners(variant, [...corners], options);
+  const atTest = solveCorners(variant, corners.map((corner) => ({ ...corner, sources: { ...(corner.sources ?? {}), [test.name]: testCurrent } })), options);
   return corners.map((_, index) => {
-    const whenOpen = opened[index];
-    const whenShort = shorted[index];
-    if (!whenOpen?.ok || !whenShort?.ok) return undefined;
-    const first = nodeVoltage(whenOpen.point, resistor.nodes[0]!);
-    const second = nodeVoltage(whenOpen.point, resistor.nodes[1]!);
-    const base = whenOpen.point.branches[held.name];
-    const withShort = whenShort.point.branches[held.name];
-    const portCurrent = whenShort.point.branches[short.name];
-    if (first === undefined || second === undefined || base === undefined || withShort === undefined || portCurrent === undefined || portCurrent === 0) return undefined;
-    const portVoltage = first - second;
-    const portResistance = portVoltage / portCurrent;
+    const zero = atZero[index];
+    const driven = atTest[index];
+    if (!zero?.ok || !driven?.ok) return undefined;
+    const portVoltage = portVoltageOf(zero.point, resistor);
+    const drivenPortVoltage = portVoltageOf(driven.point, resistor);
+    const base = zero.point.branches[held.name];
+    const drivenCurrent = driven.point.branches[held.name];
+    if (portVoltage === undefined || drivenPortVoltage === undefined || base === undefined || drivenCurrent === undefined) return undefined;
+    const portResistance = (portVoltage - drivenPortVoltage) / testCurrent;
     // The share of the resistor's current that reaches the diode: 1 for a plain series feed.
-    const transfer = (withShort - base) / portCurrent;
-    return { base, gain: transfer * portVoltage, portResistance };
+    const share = (drivenCurrent - base) / testCurrent;
+    return { base, gain: share * portVoltage, portResistance };
   });
+}
+
+function portVoltageOf(point: OperatingPoint, element: Element): number | undefined {
+  const first = nodeVoltage(point, element.nodes[0]!);
+  const second = nodeVoltage(point, element.nodes[1]!);
+  return first === undefined || second === undefined ? undefined : first - second;
 }

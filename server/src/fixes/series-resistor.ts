@@ -10,6 +10,7 @@ import { resistorRatings } from '../checks/ratings.js';
 import { LED_CURRENT_CHANGE_LIMIT, LED_FORWARD_VOLTAGE_SPREAD } from '../checks/thresholds.js';
 import type { Diode, Resistor } from '../netlist/circuit.js';
 import type { Finding, Fix, TextEdit } from '../findings.js';
+import { preferredValue } from '../preferred.js';
 import { formatQuantity } from '../units.js';
 import { diodeVoltageAt, measureThevenin } from './probes.js';
 import { diodeExtremes, elementNamed, lowestScale, planNamed, resistorPower, scaleAt, solveOptionsOf } from './readings.js';
@@ -18,7 +19,6 @@ import {
   LED_CURRENT_MARGIN,
   MAXIMUM_CANDIDATES_PER_FINDING,
   MAXIMUM_TARGET_REDUCTIONS,
-  preferredValuesFrom,
   RESISTOR_POWER_MARGIN,
   TARGET_REDUCTION,
 } from './values.js';
@@ -31,6 +31,9 @@ type LimitCurrent = Extract<FixRequest, { kind: 'limit-current' }>;
  * test (its forward-voltage spread must move the current by less than the change limit).
  */
 export const LEAST_RESISTOR_DROP = LED_FORWARD_VOLTAGE_SPREAD / LED_CURRENT_CHANGE_LIMIT;
+
+/** A re-checked current this close to the aimed one counts as on aim (ours: far below any part's tolerance, above solver noise). */
+export const AIM_TOLERANCE = 1e-3;
 
 export interface SeriesResistorDesign {
   /** The least resistance (Ω, nominal) that keeps the current at or below `current` at the governing corner. */
@@ -49,7 +52,11 @@ export function currentLimitFixes(session: FixSession, request: LimitCurrent, fi
   const existing = request.seriesResistors.map((name) => elementNamed(session.circuit, name)).find((element): element is Resistor => element?.type === 'R');
   const design = designSeriesResistor(session, diode, request, existing, plan, plans);
   if (!design) return [];
-  for (const value of preferredValuesFrom(design.leastResistance, session.settings.preferredSeries, MAXIMUM_CANDIDATES_PER_FINDING)) {
+  const series = session.settings.preferredSeries;
+  // The first value that passes its re-check, kept in case no later one also meets the aimed current.
+  let passing: Fix | undefined;
+  let value = preferredValue(design.leastResistance, series, 'up');
+  for (let candidate = 0; value !== undefined && candidate < MAXIMUM_CANDIDATES_PER_FINDING; candidate++) {
     let edits: TextEdit[] | undefined;
     let resistorName: string;
     if (existing) {
@@ -60,12 +67,22 @@ export function currentLimitFixes(session: FixSession, request: LimitCurrent, fi
       edits = inserted?.edits;
       resistorName = inserted?.name ?? '';
     }
-    if (!edits) return [];
+    if (!edits) break;
     const verdict = session.verify(edits, finding);
-    if (verdict.ok) return [{ title: title(verdict.verified, diode.name, resistorName, value, existing), preferred: true, edits }];
-    if (verdict.reason === 'budget' || verdict.reason === 'edit-failed') return [];
+    if (!verdict.ok && (verdict.reason === 'budget' || verdict.reason === 'edit-failed')) break;
+    const rechecked = verdict.ok ? verdict.verified : verdict.rechecked;
+    const current = rechecked ? diodeExtremes(rechecked, diode.name)?.forwardCurrent : undefined;
+    if (verdict.ok) {
+      const fix: Fix = { title: title(verdict.verified, diode.name, resistorName, value, existing), preferred: true, edits };
+      if (current === undefined || current <= design.current * (1 + AIM_TOLERANCE)) return [fix];
+      passing ??= fix;
+    }
+    // Next: the next value up, or further when the current fell short by more (current about ∝ 1/R where the resistor dominates).
+    const nextUp = preferredValue(value * (1 + AIM_TOLERANCE), series, 'up');
+    const scaled = current !== undefined && current > design.current ? preferredValue((value * current) / design.current, series, 'up') : undefined;
+    value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
   }
-  return [];
+  return passing ? [passing] : [];
 }
 
 /** The value to start from: the least resistance, with the aimed current lowered while the supply leaves too little headroom. */

@@ -1,6 +1,6 @@
 // Choosing a resistor's value: the margins a fix aims for, the window a value must fall in,
 // and the preferred values (IEC 60063) to try, in the order they are tried.
-import { preferredValue, preferredValuesBetween } from '../preferred.js';
+import { preferredValuesBetween } from '../preferred.js';
 import type { PreferredSeries } from '../settings.js';
 
 /**
@@ -19,18 +19,6 @@ export const MAXIMUM_TARGET_REDUCTIONS = 4;
 /** Preferred values tried for one finding, each one re-simulated (ours: a linear circuit needs the first). */
 export const MAXIMUM_CANDIDATES_PER_FINDING = 3;
 
-/** `count` preferred values at or above `minimum`, ascending. */
-export function preferredValuesFrom(minimum: number, series: PreferredSeries, count: number): number[] {
-  const values: number[] = [];
-  let next = preferredValue(minimum, series, 'up');
-  while (next !== undefined && values.length < count) {
-    values.push(next);
-    // The next one up: just above this one (the series are at least 0.5 % apart).
-    next = preferredValue(next * 1.001, series, 'up');
-  }
-  return values;
-}
-
 /** With no lower bound (no current limit above), values are looked for within a decade below the upper bound (ours). */
 export const UNBOUNDED_WINDOW_SPAN = 0.1;
 
@@ -45,14 +33,19 @@ export interface ResistanceWindow {
 
 /**
  * The preferred values inside a window, taken at their tolerance (value × (1 ± tolerance)
- * stays inside), nearest the window's geometric middle first (most margin both ways).
+ * stays inside): the one nearest the window's geometric middle (most margin both ways), then
+ * the ones above it (less current, less power), then those below.
  */
 export function preferredValuesInside(window: ResistanceWindow, tolerance: number, series: PreferredSeries, count: number): number[] {
   const high = window.maximum / (1 + tolerance);
   const low = window.minimum > 0 ? window.minimum / (1 - tolerance) : high * UNBOUNDED_WINDOW_SPAN;
   if (!(high > 0) || !(high >= low)) return [];
   const middle = Math.sqrt(low * high);
-  return preferredValuesBetween(low, high, series)
-    .sort((a, b) => Math.abs(Math.log(a / middle)) - Math.abs(Math.log(b / middle)))
-    .slice(0, count);
+  const inside = preferredValuesBetween(low, high, series);
+  if (inside.length === 0) return [];
+  let nearest = 0;
+  inside.forEach((value, index) => {
+    if (Math.abs(Math.log(value / middle)) < Math.abs(Math.log(inside[nearest]! / middle))) nearest = index;
+  });
+  return [...inside.slice(nearest), ...inside.slice(0, nearest).reverse()].slice(0, count);
 }

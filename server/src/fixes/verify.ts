@@ -48,7 +48,10 @@ export interface Verified {
   check: CheckResult;
 }
 
-export type Verdict = { ok: true; verified: Verified } | { ok: false; reason: 'target-remains' | 'new-finding' | 'edit-failed' | 'budget' };
+export type Verdict =
+  | { ok: true; verified: Verified }
+  /** `rechecked`: the copy's check, when it got that far (a value that fell short says by how much). */
+  | { ok: false; reason: 'target-remains' | 'new-finding' | 'edit-failed' | 'budget'; rechecked?: Verified };
 
 /** One analysis' worth of fix building: the original circuit, its findings, and the budget. */
 export class FixSession {
@@ -112,10 +115,10 @@ export class FixSession {
       if (!circuit) return this.reject('edit-failed');
       const check = checkCircuit(circuit, this.settings, this.config, this.options.cancellation ? { cancellation: this.options.cancellation } : {});
       if (this.options.cancellation?.isCancellationRequested) return { ok: false, reason: 'budget' };
-      if (check.findings.some((finding) => sameProblem(finding, target))) return this.reject('target-remains');
+      if (check.findings.some((finding) => sameProblem(finding, target))) return this.reject('target-remains', { circuit, check });
       const after = countKeys(check.findings, circuit.diagnostics);
       for (const [key, count] of after) {
-        if (count > (this.baseline.get(key) ?? 0)) return this.reject('new-finding');
+        if (count > (this.baseline.get(key) ?? 0)) return this.reject('new-finding', { circuit, check });
       }
       return { ok: true, verified: { circuit, check } };
     } finally {
@@ -135,9 +138,9 @@ export class FixSession {
     return { suppressed: findings.map((finding) => applySuppressions([finding], circuit, directives, this.config).length === 0), directiveProblems };
   }
 
-  private reject(reason: 'target-remains' | 'new-finding' | 'edit-failed'): Verdict {
+  private reject(reason: 'target-remains' | 'new-finding' | 'edit-failed', rechecked?: Verified): Verdict {
     this.statistics.rejected++;
-    return { ok: false, reason };
+    return rechecked ? { ok: false, reason, rechecked } : { ok: false, reason };
   }
 }
 

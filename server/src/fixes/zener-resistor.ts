@@ -11,11 +11,13 @@ import { atCorner } from '../checks/context.js';
 import { buildTopology, currentNodes } from '../checks/topology.js';
 import type { Circuit, Diode, Resistor } from '../netlist/circuit.js';
 import type { Finding, Fix } from '../findings.js';
-import { formatQuantity } from '../units.js';
+import { formatPercent, formatQuantity } from '../units.js';
+import { readDirectives } from '../checks/directives.js';
+import { resistorRatings } from '../checks/ratings.js';
 import { diodeVoltageAt, measureResistorResponse, type ResistorResponse } from './probes.js';
 import { elementNamed, resistorPower, reverseCurrentRange, scaleAt, solveOptionsOf } from './readings.js';
 import { changeResistorValue } from './resistor-lines.js';
-import { MAXIMUM_CANDIDATES_PER_FINDING, preferredValuesInside, type ResistanceWindow } from './values.js';
+import { MAXIMUM_CANDIDATES_PER_FINDING, preferredValuesInside, RESISTOR_POWER_MARGIN, type ResistanceWindow } from './values.js';
 import type { FixSession } from './verify.js';
 
 type ZenerWindowRequest = Extract<FixRequest, { kind: 'zener-window' }>;
@@ -48,6 +50,8 @@ export function zenerWindowFixes(session: FixSession, request: ZenerWindowReques
   if (values.length === 0) {
     return { fixes: [], note: ` ${name} would have to lie between ${range}, and no ${session.settings.preferredSeries} value does.` };
   }
+  const powerRating = resistorRatings(window.resistor, session.settings, readDirectives(session.circuit), session.config).power.value;
+  let overPower: number | undefined;
   for (const value of values) {
     const edits = changeResistorValue(session, window.resistor, value);
     if (!edits) return { fixes: [] };
@@ -55,6 +59,12 @@ export function zenerWindowFixes(session: FixSession, request: ZenerWindowReques
     if (verdict.ok) {
       const currents = reverseCurrentRange(verdict.verified, zener.name);
       const power = resistorPower(verdict.verified, name);
+      // The checks see a resistor's power only when it is strictly in series; a feed resistor shared with the load is checked here.
+      if (power === undefined || power > RESISTOR_POWER_MARGIN * powerRating) {
+        session.statistics.rejected++;
+        overPower = power;
+        continue;
+      }
       const numbers = [
         currents ? `zener ${formatQuantity(currents.least, 'A')} to ${formatQuantity(currents.largest, 'A')}` : undefined,
         power !== undefined ? `resistor ${formatQuantity(power, 'W')}` : undefined,
@@ -65,6 +75,12 @@ export function zenerWindowFixes(session: FixSession, request: ZenerWindowReques
       };
     }
     if (verdict.reason === 'budget' || verdict.reason === 'edit-failed') break;
+  }
+  if (overPower !== undefined) {
+    return {
+      fixes: [],
+      note: ` A value of ${name} inside its window (${range}) would dissipate ${formatQuantity(overPower, 'W')}, more than ${formatPercent(RESISTOR_POWER_MARGIN)} of its ${formatQuantity(powerRating, 'W')} rating: it needs a larger resistor part.`,
+    };
   }
   return { fixes: [] };
 }
@@ -84,8 +100,8 @@ export function zenerWindow(session: FixSession, zener: Diode, request: ZenerWin
   const voltageAtMaximum = hasMaximum ? -(diodeVoltageAt(session.circuit, zener, -request.maximumCurrent, nominal, options) ?? -request.zenerVoltage) : voltageAtKnee;
   const corners = plans.map((plan) => plan.corner);
   for (const resistor of feedCandidates(session.circuit, zener, request)) {
-    const atKnee = measureResistorResponse(session.circuit, zener, -voltageAtKnee, resistor, corners, options);
-    const atMaximum = hasMaximum ? measureResistorResponse(session.circuit, zener, -voltageAtMaximum, resistor, corners, options) : atKnee;
+    const atKnee = measureResistorResponse(session.circuit, zener, -voltageAtKnee, resistor, request.minimumCurrent, corners, options);
+    const atMaximum = hasMaximum ? measureResistorResponse(session.circuit, zener, -voltageAtMaximum, resistor, request.minimumCurrent, corners, options) : atKnee;
     const window = windowOf(resistor, plans, atKnee, atMaximum, request.minimumCurrent, hasMaximum ? request.maximumCurrent : Number.POSITIVE_INFINITY);
     if (window) return window;
   }
