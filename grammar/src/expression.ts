@@ -249,6 +249,16 @@ function blankContinuations(source: string): string {
   return source.replace(/([\r\n][ \t]*)(\+|\*[^\r\n]*)/g, (_all, before: string, marker: string) => before + ' '.repeat(marker.length));
 }
 
+/** The last `(` left open, if any: where to point when an expression ends too early. */
+function unclosedParenthesis(tokens: IToken[]): IToken | undefined {
+  const open: IToken[] = [];
+  for (const token of tokens) {
+    if (token.tokenType === Open) open.push(token);
+    else if (token.tokenType === Close) open.pop();
+  }
+  return open[open.length - 1];
+}
+
 /** Parses `source`, which is written at `base` in the text that `index` describes. Never throws. */
 export function readExpression(source: string, base: number, index: LineIndex): ExpressionReading {
   const lexed = expressionLexer.tokenize(blankContinuations(source));
@@ -278,6 +288,11 @@ export function readExpression(source: string, base: number, index: LineIndex): 
   }
   const token = error?.token;
   if (!token || token.tokenType === EOF || Number.isNaN(token.startOffset)) {
+    const open = unclosedParenthesis(lexed.tokens);
+    if (open) {
+      const at = base + open.startOffset;
+      return { expr: undefined, problem: { message: 'this `(` is not closed', range: index.range(at, at + 1) } };
+    }
     const end = base + source.length;
     return { expr: undefined, problem: { message: 'the expression ends too early', range: index.range(end, end) } };
   }

@@ -205,7 +205,10 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
     }
     if (skipping) continue;
     if (type === Title) {
-      items.push({ kind: 'title', text: token.image, range: maker.tokenRange(token) });
+      // A byte-order mark is not part of the title.
+      const bom = token.image.charCodeAt(0) === 0xfeff ? 1 : 0;
+      const range = maker.index.range(token.startOffset + bom, token.startOffset + token.image.length);
+      items.push({ kind: 'title', text: token.image.slice(bom), range });
       continue;
     }
     if (type === ControlBlock) {

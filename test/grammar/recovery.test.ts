@@ -132,3 +132,18 @@ describe('the entry point never throws', () => {
     expect(() => parse(42 as unknown as string, null as unknown as undefined)).not.toThrow();
   });
 });
+
+describe('unclosed parentheses in expressions', () => {
+  test('.param a = (1+2 reports the ( that is left open', () => {
+    const text = 'title\n.param a = (1+2\nR1 a 0 1k\n';
+    const result = parse(text);
+    expect(result.diagnostics).toHaveLength(1);
+    expect(result.diagnostics[0]!.range.start).toMatchObject({ line: 1, column: 11 });
+    expect(covered(text, result.diagnostics[0]!.range)).toBe('(');
+  });
+
+  test('a byte-order mark before the title is not part of it', () => {
+    const result = parse('\uFEFFboard title\nR1 a 0 1k\n');
+    expect(result.statements[0]).toMatchObject({ kind: 'title', text: 'board title', range: { start: { offset: 1, column: 1 } } });
+  });
+});
