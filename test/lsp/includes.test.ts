@@ -54,6 +54,31 @@ describe('include-aware checking', () => {
     expect(missing?.range).toEqual(MODEL_REFERENCE);
   });
 
+  it('checks an included file as a library: no title line, and the findings of the netlists that include it', async () => {
+    // A subcircuit file whose first line is a definition, not a title; `.sub` is no library extension,
+    // so it is known as a library only because main.cir includes it.
+    const LAMP = '.subckt LAMP a k\nD1 a k DRED\n.ends LAMP\n.model DRED D(IS=1e-20 N=1.9 RS=2)\n';
+    const PANEL = 'panel\n.include lamp.sub\nV1 in 0 DC 5\nX1 in 0 LAMP\n.end\n';
+    const workspace = makeFolder({ 'lamp.sub': LAMP, 'panel.cir': PANEL });
+    cleanups.push(workspace.cleanup);
+    const client = await startServer({ folders: [workspace.folder], settings: { debounceMilliseconds: 0 } });
+    clients.push(client);
+    const lamp = workspace.uri('lamp.sub');
+    client.open(lamp, LAMP);
+    await client.diagnostics(lamp);
+    client.open(workspace.uri('panel.cir'), PANEL);
+    // The LED inside the subcircuit sits straight across V1: its finding lands on line 1 of lamp.sub.
+    const settled = await client.until(() => {
+      const last = client.publishedFor(lamp).at(-1);
+      // Before panel.cir is checked, lamp.sub is read as a netlist whose title is `.subckt LAMP a k`, so `.ends` is a syntax error.
+      return last && last.diagnostics.some((d) => d.code === 'led-current-unlimited') && !last.diagnostics.some((d) => d.code === 'syntax') ? last : undefined;
+    }, 'the LED finding and no syntax error in lamp.sub');
+    expect(settled.diagnostics.find((d) => d.code === 'led-current-unlimited')?.range.start).toEqual({ line: 1, character: 0 });
+    // Its outline starts with the subcircuit on line 0, which a title line would have swallowed.
+    const symbols = await client.request<{ name: string }[]>('textDocument/documentSymbol', { textDocument: { uri: lamp } });
+    expect(symbols.map((s) => s.name)).toEqual(['LAMP', 'DRED']);
+  });
+
   it('in an untrusted workspace reads no include outside the workspace folders', async () => {
     const outside = mkdtempSync(join(tmpdir(), 'pnlint-outside-'));
     cleanups.push(() => rmSync(outside, { recursive: true, force: true }));

@@ -4,6 +4,7 @@
 // (an include, a pnlint.json) re-checks the documents that read it.
 import { CancellationTokenSource, DiagnosticSeverity, type Connection, type Diagnostic, type TextDocuments } from 'vscode-languageserver';
 import type { TextDocument } from 'vscode-languageserver-textdocument';
+import { parse } from '@pnlint/grammar';
 import type { DiodeReport } from '../checks/index.js';
 import type { Finding } from '../findings.js';
 import { toDiagnostic } from './diagnostics.js';
@@ -16,6 +17,8 @@ import type { AnalysisRunner, RunResult } from './runner.js';
 /** The last published check of one document, kept for hover, code actions and the rest. */
 export interface Checked {
   uri: string;
+  /** Checked as a library (see Checker.isLibrary): its syntax only. */
+  library: boolean;
   /** The document version analysed. */
   version: number;
   findings: Finding[];
@@ -26,6 +29,9 @@ export interface Checked {
   /** uri keys of every file the analysis read or looked for, and its pnlint.json. */
   dependencies: Set<string>;
 }
+
+/** Files that are libraries by name: `.lib` and `.inc` (product.md's language table). */
+const LIBRARY_EXTENSION = /\.(lib|inc)$/i;
 
 interface DocumentState {
   timer?: NodeJS.Timeout;
@@ -60,6 +66,20 @@ export class Checker {
 
   latest(uri: string): Checked | undefined {
     return this.states.get(uri)?.checked;
+  }
+
+  /**
+   * Library files (`.lib`, `.inc`, or a file that another open netlist includes) have no
+   * title line and are no circuit of their own: only their syntax is checked as such, and
+   * their circuit findings come from the netlists that include them.
+   */
+  isLibrary(uri: string): boolean {
+    if (LIBRARY_EXTENSION.test(uri)) return true;
+    const key = uriKey(uri);
+    for (const [other, state] of this.states) {
+      if (uriKey(other) !== key && state.checked && !state.checked.library && state.checked.dependencies.has(key)) return true;
+    }
+    return false;
   }
 
   /** Checks `uri` after the debounce delay; an analysis still pending or running for it is cancelled. */
@@ -117,9 +137,10 @@ export class Checker {
     if (token.isCancellationRequested || this.documents.get(uri)?.version !== version) return;
 
     const workspaceRoot = this.workspace.folderUriOf(uri);
+    const library = this.isLibrary(uri);
     let analysis: RunResult;
     try {
-      analysis = await this.runner.run(
+      analysis = library ? checkSyntaxOnly(uri, document.getText()) : await this.runner.run(
         {
           uri,
           text: document.getText(),
@@ -148,6 +169,7 @@ export class Checker {
     if (configUri) dependencies.add(uriKey(configUri));
     const checked: Checked = {
       uri,
+      library,
       version,
       findings: analysis.findings,
       diodes: analysis.diodes,
@@ -156,6 +178,12 @@ export class Checker {
       dependencies,
     };
     this.state(uri).checked = checked;
+    // Open files it includes that were checked as netlists of their own are libraries now.
+    if (!library) {
+      for (const [other, state] of this.states) {
+        if (other !== uri && state.checked && !state.checked.library && dependencies.has(uriKey(other))) this.schedule(other);
+      }
+    }
 
     const contributions = new Map<string, Diagnostic[]>();
     analysis.findings.forEach((finding, index) => {
@@ -216,6 +244,20 @@ export class Checker {
     };
     this.replaceContributions(uri, new Map([[uri, [diagnostic]]]), version);
   }
+}
+
+/** A library's own check: its syntax, read as an included file (no title line). */
+function checkSyntaxOnly(uri: string, text: string): RunResult {
+  const started = performance.now();
+  const findings: Finding[] = parse(text, { isInclude: true }).diagnostics.map((diagnostic) => ({
+    rule: diagnostic.code,
+    severity: diagnostic.severity,
+    message: diagnostic.message,
+    location: { uri, range: diagnostic.range },
+    related: [],
+    fixes: [],
+  }));
+  return { findings, diodes: [], filesRead: [uri], versionsRead: [], asked: [], complete: true, milliseconds: performance.now() - started };
 }
 
 /** Two analyses that include the same file report its findings twice: show each once. */

@@ -124,8 +124,8 @@ function ignoreActions(context: FeatureContext, document: TextDocument, finding:
       ),
     });
   }
-  // The file's first line is its title when it is the file analysed, so the directive goes below it.
-  const fileLine = isAnalysed && findingDocument.lineCount > 1 ? 1 : 0;
+  // A netlist's first line is its title, so the directive goes below it; a library has no title.
+  const fileLine = isAnalysed && !context.checker.isLibrary(findingDocument.uri) && findingDocument.lineCount > 1 ? 1 : 0;
   actions.push({
     title: `Ignore ${finding.rule} in this whole file`,
     kind: CodeActionKind.QuickFix,

@@ -9,7 +9,7 @@ import { buildIndex, IncludedSyntaxCache, type SyntaxIndex } from './syntax.js';
 import { uriKey, type Workspace } from './workspace.js';
 
 export class FeatureContext {
-  private readonly parsed = new Map<string, { version: number; syntax: ParseResult }>();
+  private readonly parsed = new Map<string, { version: number; library: boolean; syntax: ParseResult }>();
   readonly includedSyntax = new IncludedSyntaxCache();
 
   constructor(
@@ -25,10 +25,11 @@ export class FeatureContext {
 
   /** The document's syntax tree for its current text. */
   syntax(document: TextDocument): ParseResult {
+    const library = this.checker.isLibrary(document.uri);
     const cached = this.parsed.get(document.uri);
-    if (cached && cached.version === document.version) return cached.syntax;
-    const syntax = parse(document.getText());
-    this.parsed.set(document.uri, { version: document.version, syntax });
+    if (cached && cached.version === document.version && cached.library === library) return cached.syntax;
+    const syntax = parse(document.getText(), { isInclude: library });
+    this.parsed.set(document.uri, { version: document.version, library, syntax });
     return syntax;
   }
 

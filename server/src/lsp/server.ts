@@ -98,7 +98,7 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
         definitionProvider: true,
         documentSymbolProvider: true,
         inlayHintProvider: true,
-        completionProvider: { triggerCharacters: ['.', ' ', '='] },
+        completionProvider: { triggerCharacters: ['.', '='] },
         codeActionProvider: { codeActionKinds: [CodeActionKind.QuickFix, FIX_ALL_KIND] },
         workspace: { workspaceFolders: { supported: true, changeNotifications: true } },
       },
