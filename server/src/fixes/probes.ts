@@ -92,7 +92,7 @@ export function diodeVoltageAt(circuit: Circuit, diode: Diode, current: number, 
 /**
  * With the diode held at `voltage` (anode to cathode) by an ideal source, the diode's current
  * as a function of one resistor's value R, at one corner. With the diode held, the rest is
- * linear (for a linear rest), so superposition gives I(R) = base + gain / (R + portResistance).
+ * linear (for a linear rest), so superposition gives I(R) = base + share · portVoltage / (R + portResistance).
  * The resistor is replaced by a test current source (a short would close a loop of ideal
  * sources wherever the supply and the held diode are ideal): at 0 A it gives `base` and the
  * port's open voltage, at `testCurrent` the port's resistance and the diode's share.
@@ -100,8 +100,10 @@ export function diodeVoltageAt(circuit: Circuit, diode: Diode, current: number, 
 export interface ResistorResponse {
   /** The diode's forward current (A) with the resistor open. */
   base: number;
-  /** The diode's share of the resistor's current times the port's open voltage (V). */
-  gain: number;
+  /** The share of the resistor's current (first node to second) that the diode's forward current gains: −1 for a plain feed into a zener's cathode. */
+  share: number;
+  /** The voltage across the resistor's terminals with it open, first node to second (V). */
+  portVoltage: number;
   /** Resistance the resistor sees (Ω). */
   portResistance: number;
 }
@@ -144,7 +146,7 @@ export function measureResistorResponse(
     const portResistance = (portVoltage - drivenPortVoltage) / testCurrent;
     // The share of the resistor's current that reaches the diode: 1 for a plain series feed.
     const share = (drivenCurrent - base) / testCurrent;
-    return { base, gain: share * portVoltage, portResistance };
+    return { base, share, portVoltage, portResistance };
   });
 }
 

@@ -87,7 +87,7 @@ export function zenerWindowFixes(session: FixSession, request: ZenerWindowReques
 
 /**
  * The window of the first resistor that feeds the zener at every corner: for each corner,
- * the zener's reverse current is Iz(R) = B + G / (R·scale + Rp) (probes.ts), so
+ * the zener's reverse current is Iz(R) = B + G / (R·scale + Rp) with G = −share · Voc (probes.ts), so
  * Iz ≥ Iz,min gives R ≤ (G / (Iz,min − B) − Rp) / scale and Iz ≤ Iz,max gives
  * R ≥ (G / (Iz,max − B) − Rp) / scale.
  */
@@ -123,20 +123,21 @@ function windowOf(
     if (!knee || !top) return undefined;
     // Reverse currents: the response is of the forward current, so change sign.
     const kneeBase = -knee.base;
-    const kneeGain = -knee.gain;
     const topBase = -top.base;
-    const topGain = -top.gain;
-    if (!(kneeGain > 0) || !(topGain > 0)) return undefined; // more resistance would not starve it: not its feed
+    if (!(-knee.share > 0) || !(-top.share > 0)) return undefined; // the resistor's current does not reach the zener: not its feed
+    const kneeGain = -knee.share * knee.portVoltage;
+    const topGain = -top.share * top.portVoltage;
     const scale = scaleAt(plan, resistor.name);
     if (kneeBase < minimumCurrent) {
-      const largest = (kneeGain / (minimumCurrent - kneeBase) - knee.portResistance) / scale;
+      // No drive across the resistor at all (kneeGain ≤ 0): the supply is below the zener voltage, and no value helps.
+      const largest = kneeGain > 0 ? (kneeGain / (minimumCurrent - kneeBase) - knee.portResistance) / scale : 0;
       if (largest < window.maximum) {
         window.maximum = largest;
         window.maximumCorner = plan.corner.name;
       }
     }
     if (Number.isFinite(maximumCurrent)) {
-      const least = topBase >= maximumCurrent ? Number.POSITIVE_INFINITY : (topGain / (maximumCurrent - topBase) - top.portResistance) / scale;
+      const least = topBase >= maximumCurrent ? Number.POSITIVE_INFINITY : topGain > 0 ? (topGain / (maximumCurrent - topBase) - top.portResistance) / scale : 0;
       if (least > window.minimum) {
         window.minimum = least;
         window.minimumCorner = plan.corner.name;
