@@ -327,3 +327,38 @@ ${RED_LED}
     expect(problems(check(separate))).toEqual([]);
   });
 });
+
+describe.runIf(ngspiceRuns)('reverse voltage with a filter capacitor holding its charge', () => {
+  const rated = '*pnlint: rating RECT kind=rectifier vrrm=50 if=1\n.model RECT D(IS=10n N=1.9 RS=0.05)';
+  it('finds about twice the peak across a half-wave rectifier with a filter capacitor (standard textbook result, Sedra & Smith)', () => {
+    const text = `half-wave rectifier with a filter capacitor\nV1 ac 0 SIN(0 30 50)\nD1 ac out RECT\nC1 out 0 1000u\nRL out 0 1k\n${rated}\n.end\n`;
+    const result = check(text, { settings: { supplyTolerance: 0 } });
+    const held = result.diodes[0]!.heldCharge.map((corner) => -corner.point!.voltage);
+    const peakInverse = Math.max(...held);
+    // PIV ≈ 2·Vm less the diode's forward drop at the crest (standard textbook result).
+    expect(peakInverse).toBeGreaterThan(2 * 30 - 1.5);
+    expect(peakInverse).toBeLessThanOrEqual(2 * 30);
+    const [finding] = findingsOf(result, 'reverse-overvoltage');
+    expect(finding?.severity).toBe('error');
+    expect(finding?.message).toContain('C1 holding its charge');
+  });
+  it('finds about the peak across a bridge with a filter capacitor (standard textbook result), and stays quiet', () => {
+    const text = `bridge rectifier with a filter capacitor
+V1 a b SIN(0 30 50)
+RG b 0 1meg
+D1 a p RECT
+D2 b p RECT
+D3 0 a RECT
+D4 0 b RECT
+C1 p 0 1000u
+RL p 0 1k
+${rated}
+.end
+`;
+    const result = check(text, { settings: { supplyTolerance: 0 } });
+    const peakInverse = Math.max(...result.diodes.flatMap((diode) => diode.heldCharge.map((corner) => -corner.point!.voltage)));
+    expect(peakInverse).toBeGreaterThan(30 - 1.5); // PIV ≈ Vm for a bridge (standard textbook result)
+    expect(peakInverse).toBeLessThanOrEqual(30);
+    expect(findingsOf(result, 'reverse-overvoltage')).toEqual([]);
+  });
+});

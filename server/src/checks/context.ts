@@ -26,6 +26,8 @@ export interface CheckedDiode {
   ratings: DiodeRatings;
   /** Its operating point at every corner that solved. */
   corners: DiodeAtCorner[];
+  /** Its operating point at the quasi-static corners with the capacitors beside diodes holding their charge. */
+  heldCharge: DiodeAtCorner[];
   /** Why it was not checked at all (unsolved, next to an unmodeled element); rules skip it. */
   unchecked?: string;
 }
@@ -40,6 +42,8 @@ export interface CheckContext {
   topology: Topology;
   /** True when the circuit has capacitors or inductors, whose dynamics a DC solve leaves out. */
   hasReactiveElements: boolean;
+  /** The capacitors held at their charge for `heldCharge` corners (names, with the voltage held). */
+  heldCapacitors: { name: string; voltage: number }[];
   /** Solves a modified copy of the circuit at the given corners (a diode flipped, a probe inserted). */
   solveVariant(variant: Circuit, plans: readonly CornerPlan[]): SolveResult[];
   /** The rest of the circuit seen from a diode at one corner; undefined when it cannot be worked out. */

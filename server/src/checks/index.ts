@@ -6,6 +6,7 @@ import { effectiveSettings, type WorkspaceConfig } from '../config.js';
 import type { Settings } from '../settings.js';
 import type { Corner, DiodeOperatingPoint, SolveOptions, SolveResult } from '../sim/types.js';
 import { hazardCautions } from './cautions.js';
+import { solveWithHeldCharge } from './held-charge.js';
 import { classifyDiode, probeForwardVoltage } from './classify.js';
 import { atCorner, replaceElement, probeSource, THEVENIN_PROBE_STEP, type CheckContext, type CheckedDiode, type DiodeAtCorner } from './context.js';
 import { planCorners, type CornerPlan, type SupplyLimits } from './corners.js';
@@ -67,6 +68,8 @@ export interface DiodeReport {
   kindReason: string;
   ratings: RatingReport[];
   corners: DiodeCornerReport[];
+  /** The quasi-static corners again, with the capacitors beside diodes holding their charge (empty when none). */
+  heldCharge: DiodeCornerReport[];
   /** Why it could not be checked, when it could not. */
   unchecked?: string;
 }
@@ -128,6 +131,15 @@ export function checkWith(
   findings.push(...honestyFindings(circuit, solves));
   const topology = buildTopology(circuit);
   const diodes = checkedDiodes(circuit, plans, solves, directives, config, topology, solve, solveOptions);
+  const held = solveWithHeldCharge(circuit, topology, plans, solves, solve, solveOptions);
+  if (held) {
+    for (const diode of diodes) {
+      held.results.forEach((result, index) => {
+        const point = result.ok ? result.point.diodes[diode.element.name] : undefined;
+        if (point) diode.heldCharge.push({ plan: held.plans[index]!, point });
+      });
+    }
+  }
   for (const diode of diodes) {
     if (diode.unchecked) {
       const rule = diode.unchecked.includes('unmodeled') ? 'unmodeled-element' : 'unsolved-circuit';
@@ -160,6 +172,7 @@ export function checkWith(
     resistors,
     topology,
     hasReactiveElements: circuit.elements.some((element) => element.type === 'C' || element.type === 'L'),
+    heldCapacitors: (held?.capacitors ?? []).map(({ capacitor, voltage }) => ({ name: capacitor.name, voltage })),
     solveVariant: (variant, variantPlans) =>
       withinBudget() ? solve(variant, variantPlans.map((plan) => plan.corner), counterfactualOptions(variantPlans.length)) : [],
     theveninView: (diode, at) => (withinBudget() ? theveninView(circuit, diode, at, solve, counterfactualOptions(2)) : undefined),
@@ -288,7 +301,7 @@ function checkedDiodes(
       kindReason = classification.reason;
       kindSource = { origin: 'classification', description: classification.reason };
     }
-    const diode: CheckedDiode = { element, kind, kindReason, kindSource, ratings: diodeRatings(circuit, element, kind, directives, config), corners };
+    const diode: CheckedDiode = { element, kind, kindReason, kindSource, ratings: diodeRatings(circuit, element, kind, directives, config), corners, heldCharge: [] };
     const taintedBy = element.nodes.map((node) => tainted.get(node)).find((name) => name !== undefined);
     if (taintedBy) diode.unchecked = `its part of the circuit includes the unmodeled element ${taintedBy}`;
     else if (corners.length === 0) diode.unchecked = 'the circuit did not solve at any corner';
@@ -350,6 +363,13 @@ function diodeReport(diode: CheckedDiode, plans: readonly CornerPlan[], solves: 
     kindReason: diode.kindReason,
     ratings,
     corners,
+    heldCharge: diode.heldCharge.map((at) => ({
+      corner: at.plan.corner.name,
+      description: atCorner(at.plan),
+      quasiStatic: true,
+      point: at.point,
+      margins: margins(diode, at.point),
+    })),
   };
   if (diode.unchecked) report.unchecked = diode.unchecked;
   return report;
