@@ -249,6 +249,34 @@ function blankContinuations(source: string): string {
   return source.replace(/([\r\n][ \t]*)(\+|\*[^\r\n]*)/g, (_all, before: string, marker: string) => before + ' '.repeat(marker.length));
 }
 
+/**
+ * Parentheses and prefix operators nested deeper than this are not read: the parser recurses
+ * once per level, and no netlist needs more than a handful (common practice, no source).
+ */
+const MAX_EXPRESSION_NESTING = 100;
+
+/** The token at which nesting passes the limit, if it does. A run of prefix operators counts as nesting. */
+function tooDeeplyNested(tokens: IToken[]): IToken | undefined {
+  let depth = 0;
+  let prefixRun = 0;
+  let questions = 0;
+  let previous: TokenType | undefined;
+  for (const token of tokens) {
+    const type = token.tokenType;
+    if (type === Open) {
+      if (++depth > MAX_EXPRESSION_NESTING) return token;
+    } else if (type === Close) depth = Math.max(0, depth - 1);
+    // A + - ! after an operator or at the start is a prefix.
+    const prefix = (type === Plus || type === Not) && (previous === undefined || (previous !== NumberLiteral && previous !== Identifier && previous !== Close));
+    prefixRun = prefix ? prefixRun + 1 : 0;
+    // Each `?` nests the rest of the expression inside a ternary.
+    if (type === Question) questions++;
+    if (prefixRun + depth + questions > MAX_EXPRESSION_NESTING) return token;
+    previous = type;
+  }
+  return undefined;
+}
+
 /** The last `(` left open, if any: where to point when an expression ends too early. */
 function unclosedParenthesis(tokens: IToken[]): IToken | undefined {
   const open: IToken[] = [];
@@ -276,11 +304,24 @@ export function readExpression(source: string, base: number, index: LineIndex): 
   if (lexed.tokens.length === 0) {
     return { expr: undefined, problem: { message: 'the expression is empty', range: index.range(base, base + source.length) } };
   }
+  const tooDeep = tooDeeplyNested(lexed.tokens);
+  if (tooDeep) {
+    const at = base + tooDeep.startOffset;
+    return { expr: undefined, problem: { message: `the expression nests more than ${MAX_EXPRESSION_NESTING} deep`, range: index.range(at, at + tooDeep.image.length) } };
+  }
   parser ??= new ExpressionParser();
   parser.index = index;
   parser.base = base;
   parser.input = lexed.tokens;
-  const expr = parser.whole();
+  let expr: Expr | undefined;
+  try {
+    expr = parser.whole();
+  } catch (failure) {
+    // Only a stack overflow can get here, on input the nesting check did not foresee.
+    if (!(failure instanceof RangeError)) throw failure;
+    parser.index = undefined;
+    return { expr: undefined, problem: { message: 'the expression is too deeply nested to read', range: index.range(base, base + source.length) } };
+  }
   const error = parser.errors[0];
   parser.index = undefined;
   if (!error || expr === undefined) {

@@ -24,10 +24,12 @@ import {
   TITLE_MODE,
   TitleNewline,
   Word,
+  LeftParen,
+  RightParen,
 } from './lexer.js';
 import { LineIndex } from './positions.js';
 import { nestBlocks } from './structure.js';
-import { needsFields, StatementBuilder, type LineResult, type LogicalLine } from './statements.js';
+import { MAX_NESTING, needsFields, StatementBuilder, type LineResult, type LogicalLine } from './statements.js';
 
 /** What a chunk's tokens group into: a logical line still to read, or a finished statement. */
 type Item = LogicalLine | Statement;
@@ -165,6 +167,8 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
   let afterBreak = true;
   /** The rest of this physical line is skipped (after a `+` with nothing to continue). */
   let skipping = false;
+  /** Parenthesis depth in the current statement. */
+  let depth = 0;
 
   const finish = (): void => {
     current = undefined;
@@ -232,10 +236,15 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
       continue;
     }
     if (!current) {
-      current = { tokens: [], comment: undefined, end: 0, plain: true };
+      current = { tokens: [], comment: undefined, end: 0, plain: true, tooDeep: undefined };
       items.push(current);
+      depth = 0;
     }
-    if (type !== Word) current.plain = false;
+    if (type !== Word) {
+      current.plain = false;
+      if (type === LeftParen && ++depth > MAX_NESTING) current.tooDeep ??= token;
+      else if (type === RightParen && depth > 0) depth--;
+    }
     current.tokens.push(token);
     current.end = token.startOffset + token.image.length;
   }

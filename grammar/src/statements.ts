@@ -26,7 +26,15 @@ export interface LogicalLine {
   end: number;
   /** Every token is a plain word: the line needs no grammar to read. */
   plain: boolean;
+  /** The `(` at which parentheses nest deeper than MAX_NESTING, if they do. */
+  tooDeep: IToken | undefined;
 }
+
+/**
+ * Parentheses nested deeper than this are not read (a diagnostic says so): the readers
+ * recurse once per level, and no netlist needs more than a handful (common practice, no source).
+ */
+export const MAX_NESTING = 100;
 
 /** Lines that close or split a block; the structure pass consumes them. */
 export interface BlockMarker {
@@ -84,6 +92,7 @@ export function dotCommandOf(line: LogicalLine): string | undefined {
 
 /** True when the line's words go through the field parser. */
 export function needsFields(line: LogicalLine): boolean {
+  if (line.tooDeep) return false;
   const command = dotCommandOf(line);
   if (command !== undefined) return !RAW_COMMANDS.has(command);
   return startsWithLetter(line);
@@ -127,7 +136,10 @@ export class StatementBuilder {
     this.maker.problem = fieldProblem;
     const command = dotCommandOf(line);
     let result: LineResult;
-    if (command === undefined) {
+    if (line.tooDeep) {
+      this.maker.report(`parentheses nested more than ${MAX_NESTING} deep: this line is not read`, this.maker.tokenRange(line.tooDeep));
+      result = undefined;
+    } else if (command === undefined) {
       if (!startsWithLetter(line)) {
         this.maker.report('a netlist line starts with an element name (a letter), a dot command, `*` or `+`', this.maker.tokenRange(first));
         result = undefined;

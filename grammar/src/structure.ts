@@ -26,6 +26,11 @@ function lastEnd(body: Statement[], fallback: Range): Range['end'] {
 export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagnostic[]): Statement[] {
   const root: Statement[] = [];
   const stack: OpenBlock[] = [];
+  // How many blocks of each kind are open, and where each open subcircuit sits by name:
+  // a closer with nothing to close, or a `.ends name`, is then found without a scan, so
+  // that the pass stays linear however deep the nesting.
+  const openCount: Record<Block['kind'], number> = { subckt: 0, libSection: 0, if: 0 };
+  const subcircuitDepths = new Map<string, number[]>();
   const error = (message: string, range: Range): void => {
     diagnostics.push({ severity: 'error', code: 'syntax', message, range });
   };
@@ -34,27 +39,43 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
     (stack.length > 0 ? stack[stack.length - 1]!.body : root).push(statement);
   };
 
+  const open = (entry: OpenBlock): void => {
+    openCount[entry.block.kind]++;
+    if (entry.block.kind === 'subckt') {
+      const name = entry.block.name.text.toLowerCase();
+      const depths = subcircuitDepths.get(name);
+      if (depths) depths.push(stack.length);
+      else subcircuitDepths.set(name, [stack.length]);
+    }
+    stack.push(entry);
+  };
+
+  const pop = (): OpenBlock => {
+    const entry = stack.pop()!;
+    openCount[entry.block.kind]--;
+    if (entry.block.kind === 'subckt') subcircuitDepths.get(entry.block.name.text.toLowerCase())!.pop();
+    return entry;
+  };
+
+  /** The depth of the innermost open block of `kind`; only called when one is open. */
+  const innermost = (kind: Block['kind']): number => {
+    let depth = stack.length - 1;
+    while (stack[depth]!.block.kind !== kind) depth--;
+    return depth;
+  };
+
   /** Closes the innermost block of `kind`, reporting the blocks inside it left open. */
   const close = (kind: Block['kind'], marker: BlockMarker): OpenBlock | undefined => {
-    let depth = stack.length - 1;
-    while (depth >= 0 && stack[depth]!.block.kind !== kind) depth--;
+    if (openCount[kind] === 0) return undefined;
+    let depth: number | undefined;
     // `.ends outer` closes `outer` even when a subcircuit inside it was left open.
-    const name = marker.name?.text.toLowerCase();
-    if (kind === 'subckt' && name !== undefined) {
-      for (let at = stack.length - 1; at >= 0; at--) {
-        const block = stack[at]!.block;
-        if (block.kind === 'subckt' && block.name.text.toLowerCase() === name) {
-          depth = at;
-          break;
-        }
-      }
-    }
-    if (depth < 0) return undefined;
-    while (stack.length - 1 > depth) leaveOpen(stack.pop()!);
-    const open = stack.pop()!;
-    finishBranch(open);
-    open.block.range = { start: open.block.range.start, end: marker.range.end };
-    return open;
+    if (kind === 'subckt' && marker.name) depth = subcircuitDepths.get(marker.name.text.toLowerCase())?.at(-1);
+    depth ??= innermost(kind);
+    while (stack.length - 1 > depth) leaveOpen(pop());
+    const entry = pop();
+    finishBranch(entry);
+    entry.block.range = { start: entry.block.range.start, end: marker.range.end };
+    return entry;
   };
 
   const finishBranch = (open: OpenBlock): void => {
@@ -77,12 +98,12 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
     if (item.kind !== 'marker') {
       add(item);
       if (item.kind === 'subckt' || item.kind === 'libSection') {
-        stack.push({ block: item, body: item.body, reportAt: item.name.range, sawElse: false });
+        open({ block: item, body: item.body, reportAt: item.name.range, sawElse: false });
       } else if (item.kind === 'if') {
         // The `.if` word itself, three characters at the statement's start.
         const start = item.range.start;
         const reportAt = { start, end: { line: start.line, column: start.column + 3, offset: start.offset + 3 } };
-        stack.push({ block: item, body: item.branches[0]!.body, reportAt, sawElse: false });
+        open({ block: item, body: item.branches[0]!.body, reportAt, sawElse: false });
       }
       continue;
     }
@@ -118,24 +139,23 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
       }
       case 'elseif':
       case 'else': {
-        let depth = stack.length - 1;
-        while (depth >= 0 && stack[depth]!.block.kind !== 'if') depth--;
-        if (depth < 0) {
+        if (openCount.if === 0) {
           error(`\`.${item.command}\` without an \`.if\``, item.commandRange);
           break;
         }
-        while (stack.length - 1 > depth) leaveOpen(stack.pop()!);
-        const open = stack[depth]!;
-        if (open.sawElse) error(`\`.${item.command}\` after \`.else\``, item.commandRange);
-        if (item.command === 'else') open.sawElse = true;
-        finishBranch(open);
+        const depth = innermost('if');
+        while (stack.length - 1 > depth) leaveOpen(pop());
+        const entry = stack[depth]!;
+        if (entry.sawElse) error(`\`.${item.command}\` after \`.else\``, item.commandRange);
+        if (item.command === 'else') entry.sawElse = true;
+        finishBranch(entry);
         const branch = { condition: item.condition, body: [] as Statement[], range: item.range };
-        (open.block as IfStatement).branches.push(branch);
-        open.body = branch.body;
+        (entry.block as IfStatement).branches.push(branch);
+        entry.body = branch.body;
         break;
       }
     }
   }
-  while (stack.length > 0) leaveOpen(stack.pop()!);
+  while (stack.length > 0) leaveOpen(pop());
   return root;
 }

@@ -147,3 +147,33 @@ describe('unclosed parentheses in expressions', () => {
     expect(result.statements[0]).toMatchObject({ kind: 'title', text: 'board title', range: { start: { offset: 1, column: 1 } } });
   });
 });
+
+describe('deep nesting is refused, not a crash', () => {
+  // The limit is a named constant; these inputs go far past it (common practice, no source:
+  // real netlists nest a handful of levels).
+  test('100,000 nested parentheses on an element line: one error, the next line read', () => {
+    const text = `title\nV1 a 0 ${'('.repeat(100_000)}1${')'.repeat(100_000)}\nR1 a 0 1k\n`;
+    const result = parse(text);
+    expect(result.diagnostics).toHaveLength(1);
+    expect(result.diagnostics[0]!.message).not.toMatch(/internal error/);
+    expect(result.statements.at(-1)).toMatchObject({ kind: 'element', name: { text: 'R1' } });
+  });
+
+  test('deep expressions: parentheses, prefix operators, ternaries', () => {
+    for (const expression of ['('.repeat(50_000) + '1' + ')'.repeat(50_000), '-'.repeat(50_000) + '1', '2^' + '-'.repeat(50_000) + '1', 'a?b:'.repeat(50_000) + 'c']) {
+      const result = parse(`title\nR1 a 0 {${expression}}\nR2 a 0 1k\n`);
+      expect(result.diagnostics).toHaveLength(1);
+      expect(result.diagnostics[0]!.message).not.toMatch(/internal error/);
+      expect(result.statements.at(-1)).toMatchObject({ kind: 'element', name: { text: 'R2' } });
+    }
+  });
+
+  test('20,000 nested subcircuits left open, then as many stray closers: each reported', () => {
+    const depth = 20_000;
+    const lines = ['title'];
+    for (let level = 0; level < depth; level++) lines.push(`.subckt s${level} a`);
+    for (let level = 0; level < depth; level++) lines.push('.endl');
+    const result = parse(lines.join('\n'));
+    expect(result.diagnostics).toHaveLength(2 * depth);
+  });
+});
