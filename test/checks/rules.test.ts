@@ -362,3 +362,66 @@ ${rated}
     expect(findingsOf(result, 'reverse-overvoltage')).toEqual([]);
   });
 });
+
+describe.runIf(ngspiceRuns)('near misses with a transistor driver', () => {
+  it('leaves a transistor-driven LED with its resistor alone, with the current ngspice finds', () => {
+    const text = `fault LED switched by an NPN transistor
+V1 vcc 0 5
+VLOGIC ctl 0 3.3
+RB ctl b 10k
+Q1 k b 0 NPNSMALL
+R1 vcc a 220
+VAM a an 0
+D1 an k LEDRED
+.model NPNSMALL NPN(IS=1e-14 BF=200 VAF=100)
+${RED_LED}
+.end
+`;
+    const result = check(text);
+    expect(problems(result)).toEqual([]);
+    const expected = ngspiceValue(text, 'i(vam)'); // ngspice 39, nominal
+    expect(diodeAt(result, 'D1', 'nominal').current).toBeCloseTo(expected, 6);
+  });
+});
+
+describe.runIf(ngspiceRuns)('zener-underbiased follows the textbook window', () => {
+  // Rmax = (Vs,min − Vz) / (Iz,min + IL,max) (standard textbook result). Vs = 12 V − 5 %, Vz = 5.1 V,
+  // Iz,min = IZK = 1 mA, IL,max = Vz / RL = 5.1 V / 2 kΩ. The model's knee is not ideal, so the
+  // check is made 15 % either side of Rmax.
+  const rmax = (12 * 0.95 - 5.1) / (1e-3 + 5.1 / 2000);
+  const regulator = (series: number) => `zener regulator
+V1 vin 0 12
+R1 vin z ${series}
+D1 0 z Z5V1
+RL z 0 2k
+*pnlint: rating Z5V1 kind=zener izk=1m
+${ZENER}
+.end
+`;
+  it(`stays quiet below Rmax ≈ ${rmax.toFixed(0)} Ω and warns above it`, () => {
+    expect(findingsOf(check(regulator(rmax * 0.85)), 'zener-underbiased')).toEqual([]);
+    expect(findingsOf(check(regulator(rmax * 1.15)), 'zener-underbiased')).toHaveLength(1);
+  });
+});
+
+describe.runIf(ngspiceRuns)('fix requests', () => {
+  it("hand the fixes module the LED's Thevenin view: the supply and the series resistance (Thevenin's theorem)", () => {
+    const text = `LED on a 100 ohm resistor
+V1 vcc 0 5
+R1 vcc a 100
+D1 a 0 LEDRED
+${RED_LED}
+.end
+`;
+    const requests: unknown[] = [];
+    const result = check(text, { check: { fixProvider: (request) => (requests.push(request), []) } });
+    expect(findingsOf(result, 'led-current-unlimited')).toHaveLength(1);
+    const [request] = result.fixRequests.map((entry) => entry.request);
+    expect(requests).toEqual([request]);
+    expect(request).toMatchObject({ kind: 'limit-current', diode: 'D1', seriesResistors: ['R1'], maximumCurrent: 0.02, governingCorner: 'V1 max' });
+    // Seen from the LED: 5.25 V behind 100 Ω.
+    if (request?.kind !== 'limit-current') throw new Error('expected a limit-current request');
+    expect(request.thevenin?.resistance).toBeCloseTo(100, 3);
+    expect(request.thevenin?.voltage).toBeCloseTo(5.25, 4);
+  });
+});
