@@ -115,8 +115,14 @@ const LINE_BREAK = /\r\n?|\n/g;
 const CONTROL_WORD = /\.control(?=[\s;]|$)/gi;
 const ENDC_LINE = /^[ \t]*\.endc(?=[\s;]|$)[^\r\n]*/gim;
 
-/** The `.control` … `.endc` blocks of the text, as [start, end) offsets; a chunk never cuts one. */
-function findControlBlocks(text: string): [number, number][] {
+/** The `.control` … `.endc` blocks of the text, as [start, end) offsets, and the first one not yet passed. */
+interface ControlBlocks {
+  ranges: [number, number][];
+  next: number;
+}
+
+/** The `.control` … `.endc` blocks of the text; a chunk never cuts one. */
+function findControlBlocks(text: string): ControlBlocks {
   const blocks: [number, number][] = [];
   CONTROL_WORD.lastIndex = 0;
   for (let found = CONTROL_WORD.exec(text); found; found = CONTROL_WORD.exec(text)) {
@@ -127,7 +133,7 @@ function findControlBlocks(text: string): [number, number][] {
     blocks.push([found.index, end]);
     CONTROL_WORD.lastIndex = end;
   }
-  return blocks;
+  return { ranges: blocks, next: 0 };
 }
 
 /**
@@ -135,13 +141,16 @@ function findControlBlocks(text: string): [number, number][] {
  * statement (a letter or a dot command; not `+`, `*`, a comment or a blank line, which may
  * belong to the statement before) and outside any `.control` block.
  */
-function chunkEnd(text: string, start: number, size: number, controlBlocks: [number, number][]): number {
+function chunkEnd(text: string, start: number, size: number, controlBlocks: ControlBlocks): number {
   let from = start + size;
   for (;;) {
     if (from >= text.length) return text.length;
     const boundary = nextStatementStart(text, from);
-    const inside = controlBlocks.find(([blockStart, blockEnd]) => blockStart < boundary && boundary < blockEnd);
-    if (!inside) return boundary;
+    // Blocks are in text order and boundaries only move forward: skip the ones behind.
+    const blocks = controlBlocks.ranges;
+    while (controlBlocks.next < blocks.length && blocks[controlBlocks.next]![1] <= boundary) controlBlocks.next++;
+    const inside = blocks[controlBlocks.next];
+    if (!inside || inside[0] >= boundary) return boundary;
     from = inside[1];
   }
 }

@@ -141,3 +141,23 @@ describe('line ends, tabs and case', () => {
     expect(covered(text, element(result.statements).comment!.range)).toBe('; 10 \u{1F50B}');
   });
 });
+
+describe('a file larger than one reading chunk', () => {
+  test('continuations, comment lines and .control blocks read the same wherever the chunks are cut', () => {
+    // ~200 kB: the parser reads in chunks of 64 kB cut at statement starts.
+    const piece = ['R1 a b 1k', '* between a line and its continuation', '+ m=2', '.control', "let x = 'open", 'R9 q w {', '.endc', 'V1 a 0 SIN(0 1', '+ 1k)', 'D1 a 0 DRED'];
+    for (const shift of [0, 1, 7]) {
+      const lines = ['title', ...Array.from({ length: shift }, (_unused, index) => `R${index} x 0 1`)];
+      for (let index = 0; index < 3000; index++) lines.push(...piece);
+      const text = lines.join('\n');
+      const result = parse(text);
+      expect(result.diagnostics).toEqual([]);
+      const count = (kind: string): number => result.statements.filter((statement) => statement.kind === kind).length;
+      expect(count('element')).toBe(3000 * 3 + shift);
+      expect(count('control')).toBe(3000);
+      expect(count('comment')).toBe(3000);
+      const last = result.statements.at(-1)!;
+      expect(covered(text, last.range)).toBe('D1 a 0 DRED');
+    }
+  });
+});
