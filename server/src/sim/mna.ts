@@ -199,12 +199,12 @@ export class StructureBuilder implements SetupContext {
   }
 }
 
-/** Adds a conductance between unknowns a and b to the matrix, by four slots [aa, ab, ba, bb]. */
-export function conductanceSlots(context: SetupContext, a: number, b: number): Int32Array<ArrayBuffer> {
-  return Int32Array.of(context.slot(a, a), context.slot(a, b), context.slot(b, a), context.slot(b, b));
+/** The four slots [aa, ab, ba, bb] of a conductance between unknowns a and b (small arrays: cheaper than typed arrays per device). */
+export function conductanceSlots(context: SetupContext, a: number, b: number): number[] {
+  return [context.slot(a, a), context.slot(a, b), context.slot(b, a), context.slot(b, b)];
 }
 
-export function stampConductance(matrix: Float64Array, slots: Int32Array, conductance: number): void {
+export function stampConductance(matrix: Float64Array, slots: readonly number[], conductance: number): void {
   matrix[slots[0]] += conductance;
   matrix[slots[1]] -= conductance;
   matrix[slots[2]] -= conductance;

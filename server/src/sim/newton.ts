@@ -85,22 +85,31 @@ export function newtonIterate(system: CircuitSystem, matrix: SparseMatrix, lu: S
     lu.solve(system.rhs.subarray(1), next.subarray(1));
     next[0] = 0;
 
-    // Compare with the previous solution; also catches NaN and infinities.
+    // A limited junction rules this iteration out as the last: only make sure nothing overflowed.
     const previous = state.solution;
     const isCurrent = system.isCurrent;
     let moved = false;
-    let worstExcess = 0;
-    for (let i = 1; i < size; i++) {
-      const a = previous[i];
-      const b = next[i];
-      if (!Number.isFinite(b)) return { status: 'not-finite', iterations: iteration, unknown: i };
-      const tolerance = settings.relativeTolerance * Math.max(Math.abs(a), Math.abs(b)) + (isCurrent[i] ? settings.currentTolerance : settings.voltageTolerance);
-      const excess = Math.abs(b - a) / tolerance;
-      if (excess > 1) {
-        moved = true;
-        if (excess > worstExcess) {
-          worstExcess = excess;
-          worst = i;
+    if (context.nonConvergent > 0 && iteration < settings.iterationLimit) {
+      let sum = 0;
+      for (let i = 1; i < size; i++) sum += next[i];
+      if (!Number.isFinite(sum)) {
+        for (let i = 1; i < size; i++) if (!Number.isFinite(next[i])) return { status: 'not-finite', iterations: iteration, unknown: i };
+      }
+      moved = true;
+    } else {
+      let worstExcess = 0;
+      for (let i = 1; i < size; i++) {
+        const a = previous[i];
+        const b = next[i];
+        if (!Number.isFinite(b)) return { status: 'not-finite', iterations: iteration, unknown: i };
+        const tolerance = settings.relativeTolerance * Math.max(Math.abs(a), Math.abs(b)) + (isCurrent[i] ? settings.currentTolerance : settings.voltageTolerance);
+        const excess = Math.abs(b - a) / tolerance;
+        if (excess > 1) {
+          moved = true;
+          if (excess > worstExcess) {
+            worstExcess = excess;
+            worst = i;
+          }
         }
       }
     }

@@ -95,7 +95,7 @@ export class BjtDevice implements Device {
   private collectorPrime = 0;
   private basePrime = 0;
   private emitterPrime = 0;
-  private slots = new Int32Array(21);
+  private slots: number[] = [];
 
   private vt = 0;
   private saturationCurrent = 0;
@@ -130,7 +130,7 @@ export class BjtDevice implements Device {
     const bp = this.basePrime;
     const ep = this.emitterPrime;
     const s = (r: number, k: number) => context.slot(r, k);
-    this.slots = Int32Array.of(
+    this.slots = [
       // Series resistances: RC (c, c'), RB (b, b'), RE (e, e').
       s(c, c), s(c, cp), s(cp, c), s(cp, cp),
       s(b, b), s(b, bp), s(bp, b), s(bp, bp),
@@ -138,7 +138,7 @@ export class BjtDevice implements Device {
       // The intrinsic transistor's Jacobian: rows c', b', e' × columns b', c', e'.
       s(cp, bp), s(cp, ep), s(bp, cp), s(bp, ep), s(ep, cp), s(ep, bp),
       s(cp, cp), s(bp, bp), s(ep, ep),
-    );
+    ];
   }
 
   prepare(conditions: CornerConditions): void {

@@ -7,7 +7,7 @@ export class CccsDevice implements Device {
   private a = 0;
   private b = 0;
   private control = 0;
-  private slots = new Int32Array(2);
+  private slots: number[] = [];
   private gain = 0;
 
   constructor(readonly element: Cccs) {}
@@ -19,7 +19,7 @@ export class CccsDevice implements Device {
 
   bind(context: BindContext): void {
     this.control = context.branchOf(this.element.controlSource) ?? 0;
-    this.slots = Int32Array.of(context.slot(this.a, this.control), context.slot(this.b, this.control));
+    this.slots = [context.slot(this.a, this.control), context.slot(this.b, this.control)];
   }
 
   prepare(conditions: CornerConditions): void {

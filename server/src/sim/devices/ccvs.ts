@@ -7,7 +7,7 @@ export class CcvsDevice implements Device {
   branch = 0;
   private a = 0;
   private b = 0;
-  private slots = new Int32Array(5);
+  private slots: number[] = [];
   private gain = 0;
 
   constructor(readonly element: Ccvs) {}
@@ -22,7 +22,7 @@ export class CcvsDevice implements Device {
     const control = context.branchOf(this.element.controlSource) ?? 0;
     const s = context;
     const k = this.branch;
-    this.slots = Int32Array.of(s.slot(this.a, k), s.slot(this.b, k), s.slot(k, this.a), s.slot(k, this.b), s.slot(k, control));
+    this.slots = [s.slot(this.a, k), s.slot(this.b, k), s.slot(k, this.a), s.slot(k, this.b), s.slot(k, control)];
   }
 
   prepare(conditions: CornerConditions): void {

@@ -9,7 +9,7 @@ export class CurrentSwitchDevice implements Device {
   private a = 0;
   private b = 0;
   private control = 0;
-  private slots = new Int32Array(4);
+  private slots: number[] = [];
   private parameters: SwitchParameters = { threshold: 0, hysteresis: 0, onResistance: 1, offResistance: 1e12 };
   private readonly state: SwitchState;
 

@@ -71,7 +71,7 @@ export class DiodeDevice implements Device {
   private cathode = 0;
   /** The junction's anode side: the internal node when RS > 0, else the anode. */
   private junctionAnode = 0;
-  private slots = new Int32Array(7);
+  private slots: number[] = [];
 
   // Temperature-adjusted values at the present corner.
   private temperature = 0;
@@ -91,8 +91,18 @@ export class DiodeDevice implements Device {
   private stateConductance = 0;
   private warm = false;
 
+  // Read once from the element: circuits mix element shapes, so property reads on them are slow in hot loops.
+  private readonly name: string;
+  private readonly area: number;
+  private readonly instanceTemperature: number | undefined;
+  private readonly off: boolean;
+
   constructor(readonly element: DiodeElement) {
     this.parameters = cachedByModel(diodeParameters, element);
+    this.name = element.name;
+    this.area = element.area > 0 ? element.area : 1;
+    this.instanceTemperature = element.temperature;
+    this.off = element.off;
   }
 
   setup(context: SetupContext): void {
@@ -102,7 +112,7 @@ export class DiodeDevice implements Device {
     const a = this.anode;
     const k = this.cathode;
     const j = this.junctionAnode;
-    this.slots = Int32Array.of(
+    this.slots = [
       context.slot(a, a),
       context.slot(k, k),
       context.slot(j, j),
@@ -110,13 +120,13 @@ export class DiodeDevice implements Device {
       context.slot(k, j),
       context.slot(j, a),
       context.slot(j, k),
-    );
+    ];
   }
 
   prepare(conditions: CornerConditions): void {
     const p = this.parameters;
-    const area = this.element.area > 0 ? this.element.area : 1;
-    this.temperature = this.element.temperature !== undefined ? this.element.temperature + ZERO_CELSIUS_IN_KELVIN : conditions.temperature;
+    const area = this.area;
+    this.temperature = this.instanceTemperature !== undefined ? this.instanceTemperature + ZERO_CELSIUS_IN_KELVIN : conditions.temperature;
     const nominal = p.nominalTemperatureCelsius !== undefined ? p.nominalTemperatureCelsius + ZERO_CELSIUS_IN_KELVIN : conditions.nominalTemperature;
     const vt = thermalVoltage(this.temperature);
     const vte = p.emissionCoefficient * vt;
@@ -207,7 +217,7 @@ export class DiodeDevice implements Device {
     const x = context.solution;
     let v: number;
     if (context.initializeJunctions && !this.warm) {
-      v = this.element.off ? 0 : this.criticalVoltage;
+      v = this.off ? 0 : this.criticalVoltage;
     } else {
       v = x[this.junctionAnode] - x[this.cathode];
       const breakdownLimitEdge = Math.min(0, -this.knee + 10 * this.breakdownThermalVoltage);
@@ -260,9 +270,9 @@ export class DiodeDevice implements Device {
     const voltage = solution[this.anode] - solution[this.cathode];
     this.evaluate(junctionVoltage);
     const current = this.current;
-    sink.branch(this.element.name, current);
-    sink.terminals(this.element.name, [current, -current]);
-    sink.diode(this.element.name, { voltage, current, power: voltage * current, region: this.region(junctionVoltage, current) });
+    sink.branch(this.name, current);
+    sink.terminals(this.name, [current, -current]);
+    sink.diode(this.name, { voltage, current, power: voltage * current, region: this.region(junctionVoltage, current) });
   }
 
   /** forward / off / reverse by the junction voltage against ±3·N·kT/q; breakdown as the constants above say. */

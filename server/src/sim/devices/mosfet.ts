@@ -74,7 +74,7 @@ export class MosfetDevice implements Device {
   private bulk = 0;
   private drainPrime = 0;
   private sourcePrime = 0;
-  private slots = new Int32Array(17);
+  private slots: number[] = [];
 
   private vt = 0;
   private beta = 0;
@@ -112,13 +112,13 @@ export class MosfetDevice implements Device {
     const dp = this.drainPrime;
     const sp = this.sourcePrime;
     const slot = (r: number, k: number) => context.slot(r, k);
-    this.slots = Int32Array.of(
+    this.slots = [
       slot(d, d), slot(d, dp), slot(dp, d), slot(dp, dp), // RD
       slot(s, s), slot(s, sp), slot(sp, s), slot(sp, sp), // RS
       slot(dp, g), slot(dp, b), slot(dp, sp), // channel: d' row
       slot(sp, g), slot(sp, b), slot(sp, dp), // channel: s' row
       slot(b, b), slot(b, dp), slot(b, sp), // bulk row
-    );
+    ];
   }
 
   prepare(conditions: CornerConditions): void {

@@ -9,10 +9,17 @@ export class ResistorDevice implements Device {
   readonly linear = true;
   private a = 0;
   private b = 0;
-  private slots = new Int32Array(4);
+  private slots: number[] = [];
   private conductance = 0;
 
-  constructor(readonly element: Resistor) {}
+  // Read once from the element: circuits mix element shapes, so property reads on them are slow in hot loops.
+  private readonly name: string;
+  private readonly resistance: number;
+
+  constructor(readonly element: Resistor) {
+    this.name = element.name;
+    this.resistance = element.resistance;
+  }
 
   setup(context: SetupContext): void {
     this.a = context.node(this.element.nodes[0]);
@@ -21,7 +28,7 @@ export class ResistorDevice implements Device {
   }
 
   prepare(conditions: CornerConditions): void {
-    let resistance = this.element.resistance * conditions.scaleOf(this.element.name);
+    let resistance = this.resistance * conditions.scaleOf(this.name);
     if (resistance === 0) resistance = ZERO_RESISTANCE_SUBSTITUTE;
     // An infinite (or unreadable) resistance is an open circuit.
     this.conductance = Number.isFinite(resistance) ? 1 / resistance : 0;
@@ -33,7 +40,7 @@ export class ResistorDevice implements Device {
 
   report(solution: Float64Array, sink: DeviceResultSink): void {
     const current = (solution[this.a] - solution[this.b]) * this.conductance;
-    sink.branch(this.element.name, current);
-    sink.terminals(this.element.name, [current, -current]);
+    sink.branch(this.name, current);
+    sink.terminals(this.name, [current, -current]);
   }
 }

@@ -4,16 +4,16 @@ import type { CornerConditions, Device, DeviceResultSink, LoadContext, SetupCont
 
 export class VccsDevice implements Device {
   readonly linear = true;
-  private nodes = new Int32Array(4);
-  private slots = new Int32Array(4);
+  private nodes: number[] = [];
+  private slots: number[] = [];
   private gain = 0;
 
   constructor(readonly element: Vccs) {}
 
   setup(context: SetupContext): void {
     const [a, b, c, d] = this.element.nodes.map((name) => context.node(name));
-    this.nodes = Int32Array.of(a, b, c, d);
-    this.slots = Int32Array.of(context.slot(a, c), context.slot(a, d), context.slot(b, c), context.slot(b, d));
+    this.nodes = [a, b, c, d];
+    this.slots = [context.slot(a, c), context.slot(a, d), context.slot(b, c), context.slot(b, d)];
   }
 
   prepare(conditions: CornerConditions): void {

@@ -5,7 +5,7 @@ import type { CornerConditions, Device, DeviceResultSink, LoadContext, SetupCont
 export class VcvsDevice implements Device {
   readonly linear = true;
   branch = 0;
-  private slots = new Int32Array(6);
+  private slots: number[] = [];
   private gain = 0;
 
   constructor(readonly element: Vcvs) {}
@@ -13,7 +13,7 @@ export class VcvsDevice implements Device {
   setup(context: SetupContext): void {
     const [a, b, c, d] = this.element.nodes.map((name) => context.node(name));
     const k = (this.branch = context.branch(this.element.name));
-    this.slots = Int32Array.of(context.slot(a, k), context.slot(b, k), context.slot(k, a), context.slot(k, b), context.slot(k, c), context.slot(k, d));
+    this.slots = [context.slot(a, k), context.slot(b, k), context.slot(k, a), context.slot(k, b), context.slot(k, c), context.slot(k, d)];
   }
 
   prepare(conditions: CornerConditions): void {

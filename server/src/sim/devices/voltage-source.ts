@@ -9,7 +9,7 @@ export class VoltageSourceDevice implements Device {
   private b = 0;
   /** The branch current unknown: from n+ through the source to n− (SPICE's sign). */
   branch = 0;
-  private slots = new Int32Array(4);
+  private slots: number[] = [];
   private value = 0;
 
   constructor(readonly element: VoltageSource | Inductor) {}
@@ -19,7 +19,7 @@ export class VoltageSourceDevice implements Device {
     this.b = context.node(this.element.nodes[1]);
     this.branch = context.branch(this.element.name);
     const k = this.branch;
-    this.slots = Int32Array.of(context.slot(this.a, k), context.slot(this.b, k), context.slot(k, this.a), context.slot(k, this.b));
+    this.slots = [context.slot(this.a, k), context.slot(this.b, k), context.slot(k, this.a), context.slot(k, this.b)];
   }
 
   prepare(conditions: CornerConditions): void {

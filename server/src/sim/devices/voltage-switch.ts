@@ -6,8 +6,8 @@ import { SwitchState, switchParameters, type SwitchParameters } from './switch-s
 
 export class VoltageSwitchDevice implements Device {
   readonly linear = false;
-  private nodes = new Int32Array(4);
-  private slots = new Int32Array(4);
+  private nodes: number[] = [];
+  private slots: number[] = [];
   private parameters: SwitchParameters = { threshold: 0, hysteresis: 0, onResistance: 1, offResistance: 1e12 };
   private readonly state: SwitchState;
 
@@ -16,7 +16,7 @@ export class VoltageSwitchDevice implements Device {
   }
 
   setup(context: SetupContext): void {
-    this.nodes = Int32Array.from(this.element.nodes.map((name) => context.node(name)));
+    this.nodes = this.element.nodes.map((name) => context.node(name));
     this.slots = conductanceSlots(context, this.nodes[0], this.nodes[1]);
   }
 
