@@ -2,6 +2,10 @@
 // the DC solver meets: factor (ordering chosen), refactor (ordering reused, as
 // on every later Newton iteration) and solve. Run `npx tsc -b` first.
 //   node test/bench/sparse.mjs [sections…]        (default: 2000 20000)
+// Wall-clock times, as the lines `sparse-<n>: …`; on a shared machine they swing
+// with the load, so a second line per size gives the process's CPU time
+// (all its threads, JIT compilation and garbage collection included).
+import { availableParallelism, loadavg } from 'node:os';
 import { SparseLU, SparseMatrix } from '../../server/dist/sim/algebra/index.js';
 
 const REPEATS = 10;
@@ -45,29 +49,37 @@ function ladder(sections) {
   return { matrix, rhs, stamp, conductances, junctions };
 }
 
+/** Wall-clock and CPU milliseconds of one call. */
+function timed(work) {
+  const cpuBefore = process.cpuUsage();
+  const wallBefore = performance.now();
+  const result = work();
+  const wall = performance.now() - wallBefore;
+  const cpu = process.cpuUsage(cpuBefore);
+  return { result, wall, cpu: (cpu.user + cpu.system) / 1000 };
+}
+
 function measure(sections) {
   const circuit = ladder(sections);
   circuit.stamp();
   const lu = new SparseLU(circuit.matrix);
-  let start = performance.now();
-  const first = lu.factor();
-  const factorTime = performance.now() - start;
-  if (!first.ok) throw new Error(`ladder of ${sections} sections reported singular at column ${first.singularColumn}`);
+  const first = timed(() => lu.factor());
+  if (!first.result.ok) throw new Error(`ladder of ${sections} sections reported singular at column ${first.result.singularColumn}`);
 
-  let refactorTime = 0;
-  let solveTime = 0;
+  const refactorTime = { wall: 0, cpu: 0 };
+  const solveTime = { wall: 0, cpu: 0 };
   const solution = new Float64Array(circuit.rhs.length);
   for (let repeat = 1; repeat <= REPEATS; repeat++) {
     // New junction conductances each time, over many decades, as Newton's iterates bring.
     circuit.junctions.forEach((element, k) => (circuit.conductances[element] = 10 ** (-12 + ((repeat + k) % 13))));
     circuit.stamp();
-    start = performance.now();
-    const result = lu.factor();
-    refactorTime += performance.now() - start;
-    if (!result.ok) throw new Error(`refactor reported singular at column ${result.singularColumn}`);
-    start = performance.now();
-    lu.solve(circuit.rhs, solution);
-    solveTime += performance.now() - start;
+    const refactor = timed(() => lu.factor());
+    if (!refactor.result.ok) throw new Error(`refactor reported singular at column ${refactor.result.singularColumn}`);
+    const solve = timed(() => lu.solve(circuit.rhs, solution));
+    for (const [total, one] of [[refactorTime, refactor], [solveTime, solve]]) {
+      total.wall += one.wall / REPEATS;
+      total.cpu += one.cpu / REPEATS;
+    }
   }
   // Sanity: the residual must be tiny, or the times mean nothing.
   const product = new Float64Array(solution.length);
@@ -75,12 +87,15 @@ function measure(sections) {
   let residual = 0;
   for (let i = 0; i < product.length; i++) residual = Math.max(residual, Math.abs(product[i] - circuit.rhs[i]));
   if (!(residual < 1e-9)) throw new Error(`residual ${residual} too large`);
-  const orderings = lu.statistics.orderings;
-  return { factorTime, refactorTime: refactorTime / REPEATS, solveTime: solveTime / REPEATS, orderings, entries: lu.statistics.factorEntries, matrixEntries: circuit.matrix.entryCount };
+  if (lu.statistics.orderings !== 1) throw new Error(`the ordering was chosen ${lu.statistics.orderings} times, not once`);
+  return { factorTime: first, refactorTime, solveTime, fill: lu.statistics.factorEntries - circuit.matrix.entryCount };
 }
 
 const sizes = process.argv.slice(2).map(Number).filter((n) => Number.isInteger(n) && n > 0);
+console.log(`sparse: load average ${loadavg()[0].toFixed(1)} on ${availableParallelism()} cores; refactor and solve: mean of ${REPEATS}`);
 for (const sections of sizes.length ? sizes : [2000, 20000]) {
-  const { factorTime, refactorTime, solveTime } = measure(sections);
-  console.log(`sparse-${sections}: factor ${factorTime.toFixed(2)} ms, refactor ${refactorTime.toFixed(2)} ms, solve ${solveTime.toFixed(2)} ms`);
+  const { factorTime, refactorTime, solveTime, fill } = measure(sections);
+  const line = (kind) => `factor ${factorTime[kind].toFixed(2)} ms, refactor ${refactorTime[kind].toFixed(2)} ms, solve ${solveTime[kind].toFixed(2)} ms`;
+  console.log(`sparse-${sections}: ${line('wall')}`);
+  console.log(`sparse-${sections}-cpu: ${line('cpu')} (fill-in: ${fill} entries)`);
 }
