@@ -30,8 +30,8 @@ export const NUMERICAL_ZERO_RELATIVE = 1e-13;
 /**
  * Markowitz search: stop once this many rows or columns holding an acceptable
  * pivot have been looked at. Searching only a few of the sparsest lines costs
- * little in fill and bounds the search time (Duff, Erisman and Reid, Direct
- * Methods for Sparse Matrices, 1986, the chapter on the Markowitz strategy,
- * suggest two to four).
+ * little in fill and bounds the search time (the limited search described in
+ * Duff, Erisman and Reid, Direct Methods for Sparse Matrices, 1986); the number
+ * four itself is common practice, no source.
  */
 export const MARKOWITZ_SEARCH_LIMIT = 4;
