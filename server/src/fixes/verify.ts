@@ -57,7 +57,7 @@ export type Verdict =
 export class FixSession {
   readonly files: SourceFiles;
   readonly names: NameRegistry;
-  private readonly baseline: Map<string, number>;
+  private readonly baseline: KnownFindings;
   private readonly deadline: number;
   private readonly maximumVerifications: number;
 
@@ -73,7 +73,7 @@ export class FixSession {
   ) {
     this.files = new SourceFiles(circuit);
     this.names = NameRegistry.of(circuit, this.files);
-    this.baseline = countKeys(baselineFindings, circuit.diagnostics);
+    this.baseline = new KnownFindings(baselineFindings, circuit);
     this.deadline = performance.now() + (options.budgetMilliseconds ?? FIX_BUDGET_MILLISECONDS);
     this.maximumVerifications = options.maximumVerifications ?? MAXIMUM_VERIFICATIONS;
   }
@@ -116,10 +116,7 @@ export class FixSession {
       const check = checkCircuit(circuit, this.settings, this.config, this.options.cancellation ? { cancellation: this.options.cancellation } : {});
       if (this.options.cancellation?.isCancellationRequested) return { ok: false, reason: 'budget' };
       if (check.findings.some((finding) => sameProblem(finding, target))) return this.reject('target-remains', { circuit, check });
-      const after = countKeys(check.findings, circuit.diagnostics);
-      for (const [key, count] of after) {
-        if (count > (this.baseline.get(key) ?? 0)) return this.reject('new-finding', { circuit, check });
-      }
+      if (this.baseline.anyNew(check.findings, circuit)) return this.reject('new-finding', { circuit, check });
       return { ok: true, verified: { circuit, check } };
     } finally {
       this.statistics.milliseconds += performance.now() - started;
@@ -168,10 +165,63 @@ function withoutNumbers(message: string): string {
   return message.replace(NUMBER_WITH_PREFIX, '#');
 }
 
+/**
+ * The original check's findings, for telling what a re-check adds. A finding about an element
+ * is known when the original had one of the same rule and severity about that element, or
+ * naming it among the elements of its kind that it is about (a finding about a group of LEDs
+ * is filed under the first of them, which a fix may take out of the group). Other findings
+ * and netlist diagnostics are counted by their key.
+ */
+class KnownFindings {
+  private readonly groups = new Map<string, Set<string>[]>();
+  private readonly counts: Map<string, number>;
+
+  constructor(findings: readonly Finding[], circuit: Circuit) {
+    const names = elementNames(circuit);
+    for (const finding of findings) {
+      if (finding.element === undefined) continue;
+      const key = `${finding.rule}|${finding.severity}`;
+      const list = this.groups.get(key) ?? [];
+      list.push(groupOf(finding, names));
+      this.groups.set(key, list);
+    }
+    this.counts = countKeys(findings, circuit.diagnostics);
+  }
+
+  anyNew(findings: readonly Finding[], circuit: Circuit): boolean {
+    for (const finding of findings) {
+      if (finding.element === undefined) continue;
+      const element = finding.element.toLowerCase();
+      if (!(this.groups.get(`${finding.rule}|${finding.severity}`) ?? []).some((group) => group.has(element))) return true;
+    }
+    for (const [key, count] of countKeys(findings, circuit.diagnostics)) {
+      if (count > (this.counts.get(key) ?? 0)) return true;
+    }
+    return false;
+  }
+}
+
+function elementNames(circuit: Circuit): Set<string> {
+  return new Set(circuit.elements.map((element) => element.name.toLowerCase()));
+}
+
+/** The finding's element and the elements of the same letter that its message names. */
+function groupOf(finding: Finding, names: ReadonlySet<string>): Set<string> {
+  const own = finding.element!.toLowerCase();
+  const group = new Set([own]);
+  const letter = own.slice(own.lastIndexOf('.') + 1, own.lastIndexOf('.') + 2);
+  for (const word of finding.message.toLowerCase().match(/[\w.]+/g) ?? []) {
+    const name = word.replace(/\.+$/, '');
+    if (names.has(name) && name.slice(name.lastIndexOf('.') + 1).startsWith(letter)) group.add(name);
+  }
+  return group;
+}
+
+/** Findings with no element, and netlist diagnostics, by key. */
 function countKeys(findings: readonly Finding[], diagnostics: readonly NetlistDiagnostic[]): Map<string, number> {
   const counts = new Map<string, number>();
   const add = (key: string) => counts.set(key, (counts.get(key) ?? 0) + 1);
-  for (const finding of findings) add(findingKey(finding));
+  for (const finding of findings) if (finding.element === undefined) add(findingKey(finding));
   for (const diagnostic of diagnostics) add(`netlist:${findingKey({ rule: diagnostic.code, severity: diagnostic.severity, message: diagnostic.message })}`);
   return counts;
 }
