@@ -79,6 +79,8 @@ export interface AssignField {
   key: WordField;
   /** Set when the key is a group (`v(out)=1`): the group as parsed. */
   keyGroup?: GroupField;
+  /** Set when the key is an expression (`TABLE {v(a)} = (0,0) (1,1)`): the expression as parsed. */
+  keyExpression?: ExpressionField;
   value: Field;
   range: Range;
 }

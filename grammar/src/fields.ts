@@ -80,12 +80,18 @@ export class FieldMaker {
     return { kind: 'expression', text, expr: reading.expr, range };
   }
 
-  /** `key=value`: the key is a word, or a group such as `v(out)` in `.ic v(out)=1`. */
-  assign(key: WordField | GroupField, value: Field): AssignField {
+  /**
+   * `key=value`: the key is a word, a group such as `v(out)` in `.ic v(out)=1`, or an
+   * expression as in `TABLE {v(a)} = (0,0) (1,1)`; a group or expression key is kept whole too.
+   */
+  assign(key: Field, value: Field): AssignField {
     const range = { start: key.range.start, end: value.range.end };
     if (key.kind === 'word') return { kind: 'assign', key, value, range };
     const text = this.index.text.slice(key.range.start.offset, key.range.end.offset);
-    return { kind: 'assign', key: { kind: 'word', text, range: key.range }, keyGroup: key, value, range };
+    const word: WordField = { kind: 'word', text, range: key.range };
+    if (key.kind === 'group') return { kind: 'assign', key: word, keyGroup: key, value, range };
+    if (key.kind === 'expression') return { kind: 'assign', key: word, keyExpression: key, value, range };
+    return { kind: 'assign', key: word, value, range };
   }
 }
 
@@ -169,7 +175,15 @@ class FieldParser extends EmbeddedActionsParser {
 
   private readonly fieldAlternatives = [
     { ALT: () => this.SUBRULE(this.wordField) },
-    { ALT: () => this.SUBRULE(this.simpleValue) },
+    {
+      // `{v(a)} = (0,0) (1,1)`: ngspice's TABLE form takes an expression as the key.
+      ALT: (): Field => {
+        const field = this.SUBRULE(this.simpleValue);
+        const value = this.OPTION1(this.assignmentAfterValue);
+        if (this.RECORDING_PHASE) return field;
+        return value ? this.maker!.assign(field, value) : field;
+      },
+    },
     {
       ALT: (): Field => {
         const group = this.SUBRULE(this.group);
@@ -183,6 +197,7 @@ class FieldParser extends EmbeddedActionsParser {
   field = this.RULE('field', (): Field => this.OR(this.fieldAlternatives));
 
   private readonly assignment = (): Field => this.SUBRULE(this.assignedValue);
+  private readonly assignmentAfterValue = (): Field => this.SUBRULE1(this.assignedValue);
   private readonly groupAfterWord = (): GroupField => this.SUBRULE(this.group);
 
   /** A word, a named group `SIN(…)`, and either of them as the key of `key=value`. */

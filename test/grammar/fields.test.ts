@@ -240,3 +240,11 @@ describe('dot commands', () => {
     expect(title.fields.map(shape)).toEqual(["the bench's supply"]);
   });
 });
+
+describe('ngspice 39 forms with an expression key', () => {
+  test('E source TABLE {expr} = (x,y) …: the expression is the key', () => {
+    const e1 = only('title\nE2 e2 0 TABLE {v(vcc)} = (0,0) (10,1)\n', 'element');
+    expect(e1.fields.map(shape)).toEqual(['e2', '#0', 'TABLE', '{v(vcc)}=(#0 #0)', '(#10 #1)']);
+    expect(e1.fields[3]).toMatchObject({ kind: 'assign', keyExpression: { kind: 'expression', expr: { kind: 'call', name: 'v' } } });
+  });
+});

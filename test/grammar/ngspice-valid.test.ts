@@ -21,6 +21,10 @@ describe('a netlist that ngspice 39 accepts', () => {
     const values = Object.fromEntries([...between.matchAll(/^(\S+)\s+=\s+(\S+)/gm)].map((match) => [match[1], Number(match[2])]));
     expect(run.stderr ?? '').not.toMatch(/simulation\(s\) aborted|^Error|fatal error/m);
     expect(values['v(vcc)']).toBeCloseTo(5, 9); // ngspice 39: the 5 V rail
+    // ngspice 39 read the TABLE and code-model lines as meant: 5 V on a 0..10 V to 0..1 V
+    // table is 0.5 V; a summer of 5 V and 10 V with gains of 0.5 is 7.5 V.
+    expect(values['v(e2)']).toBeCloseTo(0.5, 9);
+    expect(values['v(a2)']).toBeCloseTo(7.5, 9);
   });
 
   test('pnlint reads every line of it without a diagnostic', () => {

@@ -20,7 +20,7 @@ describe('one broken line in a long file', () => {
     ["an unterminated '", "R500 n1 n2 '2*rbase", "'"],
     ['an unterminated (', 'V500 n1 0 SIN(0 1 1k', '('],
     ['a stray )', 'R500 n1 n2 470)', ')'],
-    ['a stray =', 'R500 n1 n2 {rval} = 470', '='],
+    ['a stray =', 'R500 n1 n2 470, = 5', '='],
     ['a line that starts with a number', '500 n1 n2 470', '500'],
     ['a broken expression', 'R500 n1 n2 {2 * / 3}', '/'],
     ['a key with no value', 'R500 n1 n2 470 tc=', '='],
