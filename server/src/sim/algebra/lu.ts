@@ -175,58 +175,60 @@ export class SparseLU {
   }
 
   /**
-   * Left-looking LU into the kept pattern. Gives up, leaving the work array
-   * clean, as soon as a pivot fails the threshold test or the caller's limit is hit.
+   * Left-looking LU into the kept pattern, column by column. Gives up, leaving the work
+   * array clean, as soon as a pivot fails the threshold test or the caller's limit is hit.
    */
   private refactor(shouldStop: () => boolean): 'done' | 'pivot-failed' | 'stopped' {
-    const n = this.size;
+    for (let k = 0; k < this.size; k++) {
+      if (k % STOP_CHECK_INTERVAL === 0 && shouldStop()) return 'stopped';
+      if (!this.refactorColumn(k)) return 'pivot-failed';
+    }
+    return 'done';
+  }
+
+  /** Column k of the left-looking LU; false, with the work array left clean, when its pivot fails the threshold test. */
+  private refactorColumn(k: number): boolean {
     const values = this.matrix.values;
     const work = this.work;
     const { permutedStart, permutedRow, permutedSlot, lowerStart, lowerRow, lowerValue, upperStart, upperRow, upperValue } = this;
-    const diagonal = this.diagonal;
-    const columnAtStep = this.columnAtStep;
-    const columnScale = this.columnScale;
-    for (let k = 0; k < n; k++) {
-      if (k % STOP_CHECK_INTERVAL === 0 && shouldStop()) return 'stopped';
-      for (let e = permutedStart[k], end = permutedStart[k + 1]; e < end; e++) work[permutedRow[e]] = values[permutedSlot[e]];
-      // Rows above the pivot, in ascending order: each is final when reached, then updates the rows below it.
-      const upperFirst = upperStart[k];
-      const upperEnd = upperStart[k + 1];
-      for (let e = upperFirst; e < upperEnd; e++) {
-        const j = upperRow[e];
-        const value = work[j];
-        if (value === 0) continue;
-        for (let f = lowerStart[j], end = lowerStart[j + 1]; f < end; f++) work[lowerRow[f]] -= lowerValue[f] * value;
-      }
-      const pivot = work[k];
-      const lowerFirst = lowerStart[k];
-      const lowerEnd = lowerStart[k + 1];
-      let largestBelow = 0;
-      for (let e = lowerFirst; e < lowerEnd; e++) {
-        const magnitude = Math.abs(work[lowerRow[e]]);
-        if (magnitude > largestBelow) largestBelow = magnitude;
-      }
-      const magnitude = Math.abs(pivot);
-      if (!(magnitude > NUMERICAL_ZERO_RELATIVE * columnScale[columnAtStep[k]]) || magnitude < PIVOT_ACCEPTANCE_THRESHOLD * largestBelow) {
-        for (let e = upperFirst; e < upperEnd; e++) work[upperRow[e]] = 0;
-        for (let e = lowerFirst; e < lowerEnd; e++) work[lowerRow[e]] = 0;
-        work[k] = 0;
-        return 'pivot-failed';
-      }
-      for (let e = upperFirst; e < upperEnd; e++) {
-        const j = upperRow[e];
-        upperValue[e] = work[j];
-        work[j] = 0;
-      }
-      diagonal[k] = pivot;
-      work[k] = 0;
-      for (let e = lowerFirst; e < lowerEnd; e++) {
-        const i = lowerRow[e];
-        lowerValue[e] = work[i] / pivot;
-        work[i] = 0;
-      }
+    for (let e = permutedStart[k], end = permutedStart[k + 1]; e < end; e++) work[permutedRow[e]] = values[permutedSlot[e]];
+    // Rows above the pivot, in ascending order: each is final when reached, then updates the rows below it.
+    const upperFirst = upperStart[k];
+    const upperEnd = upperStart[k + 1];
+    for (let e = upperFirst; e < upperEnd; e++) {
+      const j = upperRow[e];
+      const value = work[j];
+      if (value === 0) continue;
+      for (let f = lowerStart[j], end = lowerStart[j + 1]; f < end; f++) work[lowerRow[f]] -= lowerValue[f] * value;
     }
-    return 'done';
+    const pivot = work[k];
+    const lowerFirst = lowerStart[k];
+    const lowerEnd = lowerStart[k + 1];
+    let largestBelow = 0;
+    for (let e = lowerFirst; e < lowerEnd; e++) {
+      const magnitude = Math.abs(work[lowerRow[e]]);
+      if (magnitude > largestBelow) largestBelow = magnitude;
+    }
+    const magnitude = Math.abs(pivot);
+    if (!(magnitude > NUMERICAL_ZERO_RELATIVE * this.columnScale[this.columnAtStep[k]]) || magnitude < PIVOT_ACCEPTANCE_THRESHOLD * largestBelow) {
+      for (let e = upperFirst; e < upperEnd; e++) work[upperRow[e]] = 0;
+      for (let e = lowerFirst; e < lowerEnd; e++) work[lowerRow[e]] = 0;
+      work[k] = 0;
+      return false;
+    }
+    for (let e = upperFirst; e < upperEnd; e++) {
+      const j = upperRow[e];
+      upperValue[e] = work[j];
+      work[j] = 0;
+    }
+    this.diagonal[k] = pivot;
+    work[k] = 0;
+    for (let e = lowerFirst; e < lowerEnd; e++) {
+      const i = lowerRow[e];
+      lowerValue[e] = work[i] / pivot;
+      work[i] = 0;
+    }
+    return true;
   }
 
   /** Turns the elimination's factors into the static, step-ordered structure that refactor() and solve() use. */
