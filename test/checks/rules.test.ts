@@ -425,3 +425,25 @@ ${RED_LED}
     expect(request.thevenin?.voltage).toBeCloseTo(5.25, 4);
   });
 });
+
+describe.runIf(ngspiceRuns)('zener-underbiased at the worst corner: low supply, heaviest load', () => {
+  // Iz = (Vs,min − Vz)/R − Vz/RL (the textbook shunt regulator). With 5 % resistors, R = 1.69 kΩ and
+  // RL = 2 kΩ from 12 V − 5 %: all resistors high gives Iz ≈ 1.12 mA and all low ≈ 1.25 mA, both above
+  // IZK = 1 mA; the feed resistor high with the load low gives ≈ 0.87 mA, below it.
+  const text = `zener regulator with 5 % resistors
+V1 vin 0 12
+R1 vin z 1.69k
+D1 0 z Z5V1
+RL z 0 2k
+*pnlint: rating Z5V1 kind=zener izk=1m
+${ZENER}
+.end
+`;
+  it('finds the corner where the feed resistor is high and the load resistor low', () => {
+    const [finding] = findingsOf(check(text, { settings: { resistorTolerance: 0.05 } }), 'zener-underbiased');
+    expect(finding?.message).toContain('R1 at +tolerance, other resistors at −tolerance');
+    const textbook = (12 * 0.95 - 5.1) / (1690 * 1.05) - 5.1 / (2000 * 0.95); // standard textbook result
+    const reported = Number(/carries only ([\d.]+) µA/.exec(finding!.message)?.[1]) * 1e-6;
+    expect(Math.abs(reported - textbook)).toBeLessThan(0.05e-3); // the model's knee moves Vz by a few mV
+  });
+});

@@ -84,7 +84,7 @@ export function probeSource(circuit: Circuit, diode: Diode, voltage: number): Vo
 
 /** "at V1 = 5.25 V (max corner)", with a quasi-static note when the corner is an instant of a waveform. */
 export function atCorner(plan: CornerPlan): string {
-  const where = plan.levels.length === 0 && plan.resistorSide === 0 && plan.corner.temperature === undefined ? 'at nominal values' : `at ${plan.description}`;
+  const where = plan.corner.name === 'nominal' ? 'at nominal values' : `at ${plan.description}`;
   return plan.quasiStatic ? `${where}, quasi-static` : where;
 }
 

@@ -189,6 +189,27 @@ function makePlan(
   temperature: number,
   resistorTolerances: ReadonlyMap<string, number>,
 ): CornerPlan {
+  let resistors: ResistorSetting | undefined;
+  if (resistorSide !== 0) {
+    const scale: Record<string, number> = {};
+    const tolerances = new Set<number>();
+    for (const [resistor, tolerance] of resistorTolerances) {
+      scale[resistor] = 1 + resistorSide * tolerance;
+      tolerances.add(tolerance);
+    }
+    const spread = tolerances.size === 1 ? formatPercent([...tolerances][0]!) : 'their tolerance';
+    resistors = { scale, description: `resistors ${resistorSide < 0 ? '−' : '+'}${spread}`, name: `resistors ${resistorSide < 0 ? 'low' : 'high'}` };
+  }
+  return assemblePlan(circuit, levels, resistors, resistorSide, temperature);
+}
+
+interface ResistorSetting {
+  scale: Record<string, number>;
+  description: string;
+  name: string;
+}
+
+function assemblePlan(circuit: Circuit, levels: SourceLevel[], resistors: ResistorSetting | undefined, resistorSide: -1 | 0 | 1, temperature: number): CornerPlan {
   const corner: Corner = { name: '' };
   const parts: string[] = [];
   const nameParts: string[] = [];
@@ -201,16 +222,10 @@ function makePlan(
       nameParts.push(`${level.source} ${level.role}`);
     }
   }
-  if (resistorSide !== 0) {
-    corner.scale = {};
-    const tolerances = new Set<number>();
-    for (const [resistor, tolerance] of resistorTolerances) {
-      corner.scale[resistor] = 1 + resistorSide * tolerance;
-      tolerances.add(tolerance);
-    }
-    const spread = tolerances.size === 1 ? formatPercent([...tolerances][0]!) : 'their tolerance';
-    parts.push(`resistors ${resistorSide < 0 ? '−' : '+'}${spread}`);
-    nameParts.push(`resistors ${resistorSide < 0 ? 'low' : 'high'}`);
+  if (resistors) {
+    corner.scale = resistors.scale;
+    parts.push(resistors.description);
+    nameParts.push(resistors.name);
   }
   if (temperature !== circuit.temperature) {
     corner.temperature = temperature;
@@ -222,4 +237,17 @@ function makePlan(
   if (parts.length === 1 && description.endsWith(')')) description = `${description.slice(0, -1)} corner)`;
   const quasiStatic = levels.some((level) => level.quasiStatic);
   return { corner, description, levels, resistorSide, temperature, quasiStatic };
+}
+
+/**
+ * A corner like `plan`, but with the resistors in `raised` at their high tolerance and every
+ * other toleranced resistor at its low one: a zener's feed resistor high while its load draws
+ * most (low supply, heaviest load).
+ */
+export function splitResistorCorner(circuit: Circuit, plan: CornerPlan, raised: ReadonlySet<string>, resistorTolerances: ReadonlyMap<string, number>): CornerPlan {
+  const scale: Record<string, number> = {};
+  for (const [resistor, tolerance] of resistorTolerances) scale[resistor] = raised.has(resistor) ? 1 + tolerance : 1 - tolerance;
+  const names = [...raised].filter((name) => resistorTolerances.has(name));
+  const description = `${names.join(', ')} at +tolerance, other resistors at −tolerance`;
+  return assemblePlan(circuit, plan.levels, { scale, description, name: `${names.join(', ')} high, others low` }, 0, plan.temperature);
 }

@@ -125,3 +125,23 @@ export function nodesWithinRails(topology: Topology, start: string): Set<string>
   }
   return seen;
 }
+
+/**
+ * The resistors that feed a zener conducting in reverse at one operating point: those at its
+ * cathode that bring current in, and those at its anode that take it away, with the resistors
+ * strictly in series with it. A load resistor across the zener is not among them.
+ */
+export function feedResistors(topology: Topology, diode: Element, nodes: Readonly<Record<string, number>>): Resistor[] {
+  const [anode, cathode] = diode.nodes as [string, string];
+  const found = new Set<Resistor>(seriesResistors(topology, diode));
+  const voltage = (node: string) => nodes[node] ?? 0;
+  for (const [node, direction] of [[cathode, 1], [anode, -1]] as const) {
+    if (topology.rails.has(node)) continue;
+    for (const element of topology.connections.get(node) ?? []) {
+      if (element.type !== 'R') continue;
+      const other = otherNode(element, node);
+      if (other !== undefined && direction * (voltage(other) - voltage(node)) > 0) found.add(element);
+    }
+  }
+  return [...found];
+}

@@ -8,10 +8,10 @@ import { atCorner, type CheckContext } from '../context.js';
 import type { CornerPlan } from '../corners.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
-import { seriesResistors } from '../topology.js';
+import { feedResistors, seriesResistors } from '../topology.js';
 import { worstCorner } from '../thresholds.js';
 import { KIND_NAMES } from '../vocabulary.js';
-import { cornerSources } from './related.js';
+import { cornerSources, nodesAt } from './related.js';
 import type { Rule } from './rule.js';
 
 const ID = 'overdissipation';
@@ -24,7 +24,11 @@ export const overdissipation: Rule = {
     for (const diode of context.diodes) {
       if (diode.unchecked) continue;
       if (diode.kind === 'led' || diode.kind === 'zener') {
-        for (const resistor of seriesResistors(context.topology, diode.element)) if (!resistorsToCheck.has(resistor)) resistorsToCheck.set(resistor, diode.element.name);
+        // A zener's feed resistor carries its current and the load's: found from the solved voltages.
+        const feeding = diode.kind === 'zener' ? diode.corners.flatMap((at) => feedResistors(context.topology, diode.element, nodesAt(context, at))) : [];
+        for (const resistor of [...seriesResistors(context.topology, diode.element), ...feeding]) {
+          if (!resistorsToCheck.has(resistor)) resistorsToCheck.set(resistor, diode.element.name);
+        }
       }
       const worst = worstCorner(diode, (at) => Math.abs(at.point.power));
       if (!worst) continue;
@@ -56,13 +60,13 @@ export const overdissipation: Rule = {
         makeFinding(
           ID,
           'error',
-          `Resistor ${resistor.name} in series with ${diodeName} dissipates ${formatQuantity(worst.power, 'W')} ${atCorner(worst.plan)}; rating ${describeRating('p', rating)}.`,
+          `Resistor ${resistor.name}, which feeds ${diodeName}, dissipates ${formatQuantity(worst.power, 'W')} ${atCorner(worst.plan)}; rating ${describeRating('p', rating)}.`,
           resistor.location,
           {
             element: resistor.name,
             related: [
               ...cornerSources(context, worst.plan),
-              ...(context.elementNamed(diodeName) ? [{ location: context.elementNamed(diodeName)!.location, message: `${diodeName}, in series` }] : []),
+              ...(context.elementNamed(diodeName) ? [{ location: context.elementNamed(diodeName)!.location, message: `${diodeName}, which it feeds` }] : []),
             ],
           },
         ),

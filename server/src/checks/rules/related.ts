@@ -2,7 +2,7 @@
 // resistors in series with the diode.
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
-import type { CheckContext, CheckedDiode } from '../context.js';
+import type { CheckContext, CheckedDiode, DiodeAtCorner } from '../context.js';
 import type { CornerPlan } from '../corners.js';
 import { seriesResistors } from '../topology.js';
 
@@ -20,4 +20,11 @@ export function seriesResistorsOf(context: CheckContext, diode: CheckedDiode): F
     location: resistor.location,
     message: `${resistor.name} (${formatQuantity(resistor.resistance, 'Ω')}) in series`,
   }));
+}
+
+/** The node voltages of the solve a diode's operating point came from (the base solves, or a variant's when not found there). */
+export function nodesAt(context: CheckContext, at: DiodeAtCorner): Readonly<Record<string, number>> {
+  const index = context.plans.indexOf(at.plan);
+  const result = index >= 0 ? context.solves[index] : undefined;
+  return result?.ok ? result.point.nodes : {};
 }

@@ -4,12 +4,13 @@
 // (a directive or pnlint.json), which says it is meant to regulate.
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
-import { atCorner, type CheckContext } from '../context.js';
+import { atCorner, type CheckContext, type CheckedDiode, type DiodeAtCorner } from '../context.js';
+import { splitResistorCorner } from '../corners.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
-import { seriesResistors } from '../topology.js';
+import { feedResistors } from '../topology.js';
 import { CONDUCTION_THRESHOLD, worstCorner } from '../thresholds.js';
-import { cornerSources, seriesResistorsOf } from './related.js';
+import { cornerSources, nodesAt } from './related.js';
 import type { Rule } from './rule.js';
 
 const ID = 'zener-underbiased';
@@ -27,8 +28,9 @@ export const zenerUnderbiased: Rule = {
       if (!regulating && !declared) continue;
       if (!knee) continue;
       // Least reverse current: the corner that starves it.
-      const worst = worstCorner(diode, (at) => at.point.current);
+      let worst = worstCorner(diode, (at) => at.point.current);
       if (!worst) continue;
+      worst = splitTolerances(context, diode, worst) ?? worst;
       const reverseCurrent = -worst.value;
       if (reverseCurrent >= knee.value) continue;
       const name = diode.element.name;
@@ -39,7 +41,16 @@ export const zenerUnderbiased: Rule = {
         `Zener ${name} carries ${shown} ${atCorner(worst.at.plan)}, below its minimum regulating current ${describeRating('izk', knee)}: ` +
           `below its knee a real part no longer holds its zener voltage (the model gives ${formatQuantity(-worst.at.point.voltage, 'V')} there).`,
         diode.element.location,
-        { element: name, related: [...cornerSources(context, worst.at.plan), ...seriesResistorsOf(context, diode)] },
+        {
+          element: name,
+          related: [
+            ...cornerSources(context, worst.at.plan),
+            ...feedResistors(context.topology, diode.element, nodesAt(context, worst.at)).map((resistor) => ({
+              location: resistor.location,
+              message: `${resistor.name} (${formatQuantity(resistor.resistance, 'Ω')}) feeds it`,
+            })),
+          ],
+        },
       );
       const zenerVoltage = diode.ratings.vz?.value ?? Math.max(...diode.corners.map((at) => -at.point.voltage));
       const powerLimit = diode.ratings.pd?.value;
@@ -49,7 +60,7 @@ export const zenerUnderbiased: Rule = {
           kind: 'zener-window',
           rule: ID,
           diode: name,
-          seriesResistors: seriesResistors(context.topology, diode.element).map((resistor) => resistor.name),
+          seriesResistors: feedResistors(context.topology, diode.element, nodesAt(context, worst.at)).map((resistor) => resistor.name),
           minimumCurrent: knee.value,
           maximumCurrent,
           zenerVoltage,
@@ -62,3 +73,19 @@ export const zenerUnderbiased: Rule = {
     return findings;
   },
 };
+
+/**
+ * Resistor tolerances all one way do not starve a zener most: its feed resistor high and its
+ * load resistors low do. Solves that corner beside the worst one found, and keeps the worse.
+ */
+function splitTolerances(context: CheckContext, diode: CheckedDiode, worst: { at: DiodeAtCorner; value: number }): { at: DiodeAtCorner; value: number } | undefined {
+  const tolerances = new Map<string, number>();
+  for (const [name, ratings] of context.resistors) if (ratings.tolerance && ratings.tolerance.value > 0) tolerances.set(name, ratings.tolerance.value);
+  const feed = new Set(feedResistors(context.topology, diode.element, nodesAt(context, worst.at)).map((resistor) => resistor.name));
+  if (tolerances.size === 0 || ![...feed].some((name) => tolerances.has(name))) return undefined;
+  const plan = splitResistorCorner(context.circuit, worst.at.plan, feed, tolerances);
+  const [result] = context.solveVariant(context.circuit, [plan]);
+  const point = result?.ok ? result.point.diodes[diode.element.name] : undefined;
+  if (!point || point.current <= worst.value) return undefined;
+  return { at: { plan, point }, value: point.current };
+}
