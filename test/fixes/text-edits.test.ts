@@ -154,6 +154,24 @@ ${RED_LED}
     expect(check.findings.filter((each) => each.rule === 'directive')).toEqual([]);
   });
 
+  it('silences every instance of a subcircuit from one directive in its body', () => {
+    const cells = `two lamps from one subcircuit
+V1 vcc 0 5
+X1 vcc cell
+X2 vcc cell
+.subckt cell p
+  D1 p 0 LEDRED
+.ends
+${RED_LED}
+.end
+`;
+    const checked = checkWithFixes(cells);
+    const fix = findingOf(checked, 'led-current-unlimited', 'X1.D1').fixes.find((each) => each.title.startsWith('Ignore'))!;
+    const files = applyFix(checked, fix);
+    expect(files[MAIN_URI]).toBe(cells.replace('  D1 p 0 LEDRED\n', '  *pnlint: ignore led-current-unlimited -- \n  D1 p 0 LEDRED\n'));
+    expect(recheck(checked, files).check.findings.filter((each) => each.rule === 'led-current-unlimited')).toEqual([]);
+  });
+
   it('writes a CRLF line in a CRLF file', () => {
     const crlf = text.replace(/\n/g, '\r\n');
     const checked = checkWithFixes(crlf);

@@ -16,6 +16,8 @@ import { currentLimitFixes } from './series-resistor.js';
 import { FixSession, type FixOptions, type FixStatistics } from './verify.js';
 import { zenerWindowFixes } from './zener-resistor.js';
 
+const SEVERITY_ORDER: Readonly<Record<Finding['severity'], number>> = { error: 0, warning: 1, info: 2 };
+
 export interface RequestedFixes {
   fixes: Fix[];
   /** A sentence for the finding's message when no fix can exist (a zener with no window). */
@@ -112,15 +114,16 @@ export function attachVerifiedFixes(
     list.push(request);
     requests.set(finding, list);
   }
+  // Errors first, so that a spent budget leaves the lesser findings without fixes rather than the worst.
+  const byUrgency = [...check.findings].sort((a, b) => SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
+  const built = new Map<Finding, RequestedFixes[]>();
+  for (const finding of byUrgency) {
+    built.set(finding, (requests.get(finding) ?? []).map((request) => fixesForRequest(session, request, finding, check.cornerPlans)));
+  }
   const findings = check.findings.map((finding) => {
-    const fixes = [...finding.fixes];
-    let message = finding.message;
-    for (const request of requests.get(finding) ?? []) {
-      const result = fixesForRequest(session, request, finding, check.cornerPlans);
-      fixes.push(...result.fixes);
-      if (result.note) message += result.note;
-    }
-    return { ...finding, message, fixes };
+    const results = built.get(finding) ?? [];
+    const message = finding.message + results.map((result) => result.note ?? '').join('');
+    return { ...finding, message, fixes: [...finding.fixes, ...results.flatMap((result) => result.fixes)] };
   });
   const ignores = verifiedIgnoreFixes(session, check.findings);
   return {
