@@ -4,11 +4,12 @@
 // a bundle of this file alone is a complete server).
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { createConnection, ProposedFeatures } from 'vscode-languageserver/node.js';
-import { serveAnalyses, WORKER_MARKER } from './runner.js';
+import { WORKER_MARKER } from './runner.js';
 import { startLanguageServer } from './server.js';
 
 if (!isMainThread && parentPort && (workerData as Record<string, unknown> | null)?.[WORKER_MARKER]) {
-  serveAnalyses(parentPort);
+  const port = parentPort;
+  void import('./analysis-host.js').then((host) => host.serveAnalyses(port));
 } else {
   startLanguageServer(createConnection(ProposedFeatures.all), { analysisWorker: new URL(import.meta.url) });
 }

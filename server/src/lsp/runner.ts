@@ -6,12 +6,9 @@
 import { Worker } from 'node:worker_threads';
 import { fileURLToPath } from 'node:url';
 import type { CancellationToken } from 'vscode-languageserver';
-import { analyze, type Analysis } from '../analysis.js';
 import type { DiodeReport } from '../checks/index.js';
-import { formatOperatingPointText } from '../cli/op-report.js';
 import type { Finding } from '../findings.js';
 import type { Settings } from '../settings.js';
-import { Workspace, type DocumentSource } from './workspace.js';
 
 export interface OpenDocumentText {
   uri: string;
@@ -46,6 +43,8 @@ export interface RunResult {
 }
 
 export interface AnalysisRunner {
+  /** Gets ready before the first request (the worker loads the pipeline meanwhile). */
+  warmUp(): void;
   run(request: RunRequest, token: CancellationToken): Promise<RunResult>;
   /** The `pnlint op` text of the last complete analysis of `uri`. */
   report(uri: string): Promise<string | undefined>;
@@ -53,84 +52,26 @@ export interface AnalysisRunner {
   dispose(): void;
 }
 
-/** Runs one analysis where it is called; the worker and the in-thread runner share it. */
-export function runAnalysis(request: RunRequest, cancellation: { readonly isCancellationRequested: boolean }, log: (message: string) => void): { result: RunResult; analysis: Analysis } {
-  const documents = new SnapshotDocuments(request.openDocuments);
-  const workspace = new Workspace(documents);
-  workspace.setFolders(request.folders);
-  workspace.restricted = request.settings.restricted;
-  const reader = workspace.createReader(log);
-  const analysis = analyze({
-    uri: request.uri,
-    text: request.text,
-    files: reader,
-    settings: request.settings,
-    config: request.config,
-    cancellation,
-    // The reader refuses too (for every folder of a multi-root workspace); the pipeline says why at the include.
-    restricted: request.settings.restricted,
-    ...(request.workspaceRoot ? { workspaceRoot: request.workspaceRoot } : {}),
-  });
-  return {
-    analysis,
-    result: {
-      findings: analysis.findings,
-      diodes: analysis.check?.diodes ?? [],
-      filesRead: analysis.filesRead,
-      versionsRead: [...reader.versions],
-      asked: [...reader.asked],
-      complete: analysis.complete,
-      milliseconds: analysis.milliseconds,
-    },
-  };
-}
-
-/** Open documents as sent to the worker, looked up like the server's TextDocuments. */
-class SnapshotDocuments implements DocumentSource {
-  private readonly byUri: Map<string, { uri: string; version: number; getText(): string }>;
-
-  constructor(documents: OpenDocumentText[]) {
-    this.byUri = new Map(documents.map((d) => [d.uri, { uri: d.uri, version: d.version, getText: () => d.text }]));
-  }
-
-  get(uri: string) {
-    return this.byUri.get(uri);
-  }
-
-  all() {
-    return [...this.byUri.values()];
-  }
-}
-
-/** Keeps each document's last complete analysis, for the operating-point report. */
-class LatestAnalyses {
-  private readonly analyses = new Map<string, Analysis>();
-  keep(uri: string, analysis: Analysis): void {
-    if (analysis.complete) this.analyses.set(uri, analysis);
-  }
-  report(uri: string): string | undefined {
-    const analysis = this.analyses.get(uri);
-    return analysis ? formatOperatingPointText(analysis) : undefined;
-  }
-  forget(uri: string): void {
-    this.analyses.delete(uri);
-  }
-}
+/** The pipeline is loaded only where analyses run (the worker), not in the protocol thread. */
+const loadHost = () => import('./analysis-host.js');
 
 export class InlineRunner implements AnalysisRunner {
-  private readonly latest = new LatestAnalyses();
+  private readonly host = loadHost().then((host) => ({ host, latest: new host.LatestAnalyses() }));
   constructor(private readonly log: (message: string) => void) {}
 
+  warmUp(): void {}
+
   async run(request: RunRequest, token: CancellationToken): Promise<RunResult> {
-    const { result, analysis } = runAnalysis(request, token, this.log);
-    this.latest.keep(request.uri, analysis);
+    const { host, latest } = await this.host;
+    const { result, analysis } = host.runAnalysis(request, token, this.log);
+    latest.keep(request.uri, analysis);
     return result;
   }
   async report(uri: string): Promise<string | undefined> {
-    return this.latest.report(uri);
+    return (await this.host).latest.report(uri);
   }
   forget(uri: string): void {
-    this.latest.forget(uri);
+    void this.host.then(({ latest }) => latest.forget(uri));
   }
   dispose(): void {}
 }
@@ -169,7 +110,8 @@ interface Pending {
 /** A request whose worker died this many times is failed, not retried: it is probably what kills it. */
 const ATTEMPTS_PER_REQUEST = 2;
 
-const CANCELLED_RESULT: RunResult = { findings: [], diodes: [], filesRead: [], versionsRead: [], asked: [], complete: false, milliseconds: 0 };
+/** The result of an analysis that was stopped before it started or finished. */
+export const CANCELLED_RESULT: RunResult = { findings: [], diodes: [], filesRead: [], versionsRead: [], asked: [], complete: false, milliseconds: 0 };
 
 export class WorkerRunner implements AnalysisRunner {
   private worker: Worker | undefined;
@@ -180,6 +122,10 @@ export class WorkerRunner implements AnalysisRunner {
     private readonly script: URL,
     private readonly log: (message: string) => void,
   ) {}
+
+  warmUp(): void {
+    this.ensureWorker();
+  }
 
   private ensureWorker(): Worker {
     if (this.worker) return this.worker;
@@ -275,37 +221,4 @@ export class WorkerRunner implements AnalysisRunner {
     void this.worker?.terminate();
     this.worker = undefined;
   }
-}
-
-/** The worker thread's side: answers run, report and forget messages, one at a time. */
-export function serveAnalyses(port: { on(event: 'message', listener: (message: WorkerRequest) => void): void; postMessage(message: WorkerResponse): void }): void {
-  const latest = new LatestAnalyses();
-  const log = (message: string) => port.postMessage({ type: 'log', message });
-  port.on('message', (message) => {
-    try {
-      switch (message.type) {
-        case 'run': {
-          const flag = new Int32Array(message.cancelled);
-          const token = { get isCancellationRequested() { return Atomics.load(flag, 0) === 1; } };
-          // Cancelled while queued: skip the work.
-          if (token.isCancellationRequested) {
-            port.postMessage({ type: 'result', id: message.id, result: CANCELLED_RESULT });
-            return;
-          }
-          const { result, analysis } = runAnalysis(message.request, token, log);
-          latest.keep(message.request.uri, analysis);
-          port.postMessage({ type: 'result', id: message.id, result });
-          return;
-        }
-        case 'report':
-          port.postMessage({ type: 'report', id: message.id, text: latest.report(message.uri) });
-          return;
-        case 'forget':
-          latest.forget(message.uri);
-          return;
-      }
-    } catch (error) {
-      if (message.type !== 'forget') port.postMessage({ type: 'failed', id: message.id, error: error instanceof Error ? (error.stack ?? error.message) : String(error) });
-    }
-  });
 }

@@ -120,6 +120,7 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
         checker.recheckAll();
       });
     }
+    runner.warmUp();
     log(`pnlint language server started${workspace.restricted ? ' (restricted: untrusted workspace)' : ''}`);
   });
 
