@@ -45,8 +45,13 @@ export class FieldMaker {
     return this.index.range(token.startOffset, token.startOffset + token.image.length);
   }
 
+  /** The range of a token that stays on one line: words, `=`, `(`, … (not expressions, which may run on). */
+  wordRange(token: IToken): Range {
+    return this.index.lineRange(token.startOffset, token.startOffset + token.image.length);
+  }
+
   word(token: IToken): WordField {
-    return { kind: 'word', text: token.image, range: this.tokenRange(token) };
+    return { kind: 'word', text: token.image, range: this.wordRange(token) };
   }
 
   /** A word that begins like a number is a number (`4k7`, `1uF`, `-5`); its text is kept. */
@@ -54,9 +59,9 @@ export class FieldMaker {
     const text = token.image;
     if (beginsLikeNumber(text)) {
       const value = readSpiceValue(text);
-      if (value !== undefined) return { kind: 'number', text, value, range: this.tokenRange(token) };
+      if (value !== undefined) return { kind: 'number', text, value, range: this.wordRange(token) };
     }
-    return { kind: 'word', text, range: this.tokenRange(token) };
+    return { kind: 'word', text, range: this.wordRange(token) };
   }
 
   /** A `{…}` or `'…'` token. `text` is as written, with its delimiters; the range covers them. */
