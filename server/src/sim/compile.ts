@@ -16,7 +16,7 @@ import { VoltageSourceDevice } from './devices/voltage-source.js';
 import { VoltageSwitchDevice } from './devices/voltage-switch.js';
 import { BjtDevice } from './devices/bjt.js';
 import { MosfetDevice } from './devices/mosfet.js';
-import { circuitLocation, diagnoseStructure, isVoltageDefined } from './diagnose.js';
+import { circuitLocation, diagnoseStructure } from './diagnose.js';
 import { CircuitSystem, StructureBuilder, type Device } from './mna.js';
 
 /** A node with no DC path to ground is tied to it through this conductance so the rest solves (ngspice's default gmin, 1e-12 S). */
@@ -132,15 +132,33 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
   // Work on copies with ground folded, so that device code sees '0' only.
   const elements: Element[] = circuit.elements.map((e) => (e.nodes.some((n) => canonicalNode(n) !== n) ? ({ ...e, nodes: e.nodes.map(canonicalNode) } as Element) : e));
 
-  // Voltage-defined elements, by lower-cased name, for F, H and W to find their control.
-  const branchOwners = new Map<string, Element>();
-  for (const element of elements) if (isVoltageDefined(element)) branchOwners.set(element.name.toLowerCase(), element);
+  // One pass reads each element's type and nodes (elements come in many shapes, so each read
+  // is slow) and numbers every netlist node, in netlist order, before devices add their own unknowns.
+  const builder = new StructureBuilder(circuit.nodes.map(canonicalNode).filter((n) => n !== GROUND));
+  const count = elements.length;
+  const types: Element['type'][] = new Array(count);
+  const nodeStart = new Int32Array(count + 1);
+  const nodeNumbers: number[] = [];
+  const branchOwners = new Set<string>();
+  for (let i = 0; i < count; i++) {
+    const element = elements[i];
+    const type = (types[i] = element.type);
+    nodeStart[i] = nodeNumbers.length;
+    for (const node of element.nodes) nodeNumbers.push(builder.node(node));
+    // Voltage-defined elements, by lower-cased name, for F, H and W to find their control.
+    if (type === 'V' || type === 'L' || type === 'E' || type === 'H') branchOwners.add(element.name.toLowerCase());
+  }
+  nodeStart[count] = nodeNumbers.length;
 
-  const active: Element[] = [];
-  for (const element of elements) {
-    const required = REQUIRED_NODES[element.type];
-    if (required !== undefined && element.nodes.length < required) {
-      leaveOpen(element, `it has ${element.nodes.length} nodes where ${required} are needed`);
+  const active = new Uint8Array(count);
+  let activeCount = 0;
+  for (let i = 0; i < count; i++) {
+    const element = elements[i];
+    const type = types[i];
+    const nodeCount = nodeStart[i + 1] - nodeStart[i];
+    const required = REQUIRED_NODES[type];
+    if (required !== undefined && nodeCount < required) {
+      leaveOpen(element, `it has ${nodeCount} nodes where ${required} are needed`);
       continue;
     }
     const unreadable = unreadableValue(element);
@@ -156,29 +174,26 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
       leaveOpen(element, `its controlling source ${element.controlSource} is not a voltage source, inductor or E/H source of this circuit`);
       continue;
     }
-    if (element.type === 'C' || element.type === 'K') continue;
-
-    active.push(element);
+    if (type === 'C' || type === 'K') continue;
+    active[i] = 1;
+    activeCount++;
   }
 
-  // Unknowns: every netlist node first (so that the node index is stable), then what devices add.
-  const nodeNames = [...new Set([...circuit.nodes.map(canonicalNode), ...elements.flatMap((e) => e.nodes)])].filter((n) => n !== GROUND);
-  const builder = new StructureBuilder(nodeNames);
   const nodeIndex = new Map<string, number>(builder.nodeEntries());
-  const structure = diagnoseStructure({ ...circuit, elements }, active, nodeIndex, builder.size);
+  const structure = diagnoseStructure(circuit, { elements, types, active, nodeStart, nodeNumbers: Int32Array.from(nodeNumbers), nodeIndex, nodeCount: builder.size });
   diagnostics.push(...structure.diagnostics);
 
   const devices: Device[] = [];
-  for (const element of active) {
-    const device = createDevice(element);
+  for (let i = 0; i < count; i++) {
+    if (!active[i]) continue;
+    const device = createDevice(elements[i]);
     if (!device) continue;
     device.setup(builder);
     devices.push(device);
   }
   const branchByName = new Map<string, number>();
   for (const device of devices) {
-    const branch = (device as { branch?: number }).branch;
-    if (typeof branch === 'number' && isVoltageDefined(device.element)) branchByName.set(device.element.name.toLowerCase(), branch);
+    if (device instanceof VoltageSourceDevice || device instanceof VcvsDevice || device instanceof CcvsDevice) branchByName.set(device.element.name.toLowerCase(), device.branch);
   }
   for (const device of devices) {
     device.bind?.({
@@ -203,7 +218,7 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
   matrix.finalize();
   const lu = new SparseLU(matrix);
 
-  if (active.length === 0 && circuit.elements.length > 0) {
+  if (activeCount === 0 && count > 0) {
     diagnostics.push({ severity: 'info', code: 'unsolved-circuit', message: 'nothing in this circuit is simulated at DC', location: circuitLocation(circuit) });
   }
 

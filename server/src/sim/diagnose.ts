@@ -85,22 +85,45 @@ export interface StructuralFindings {
   hasVoltageLoop: boolean;
 }
 
-/**
- * Checks the topology of the elements that will be simulated (`active`) over the node
- * index `nodeIndex` (ground is 0).
- */
-export function diagnoseStructure(circuit: Circuit, active: Element[], nodeIndex: Map<string, number>, nodeCount: number): StructuralFindings {
+/** The circuit's connections, read once by the compiler: element i's nodes are nodeNumbers[nodeStart[i] … nodeStart[i + 1]). */
+export interface Topology {
+  elements: Element[];
+  types: Element['type'][];
+  /** 1 where the element is simulated. */
+  active: Uint8Array;
+  nodeStart: Int32Array;
+  nodeNumbers: Int32Array;
+  /** Netlist node name → unknown number (ground 0). */
+  nodeIndex: ReadonlyMap<string, number>;
+  /** Unknowns numbered so far (node numbers are below this). */
+  nodeCount: number;
+}
+
+/** Node positions an element type connects at DC (see dcConnections), by type. */
+function dcPairs(type: Element['type']): readonly (readonly [number, number])[] {
+  return DC_PAIRS[type] ?? NO_PAIRS;
+}
+const NO_PAIRS: readonly (readonly [number, number])[] = [];
+const DC_PAIRS: Partial<Record<Element['type'], readonly (readonly [number, number])[]>> = {};
+for (const type of ['R', 'L', 'V', 'D', 'W', 'H', 'E', 'S', 'Q', 'M'] as const) {
+  DC_PAIRS[type] = dcConnections({ type } as Element);
+}
+
+/** Checks the topology of the simulated elements: loops of voltage-defined branches, nodes with no DC path to ground. */
+export function diagnoseStructure(circuit: Circuit, topology: Topology): StructuralFindings {
+  const { elements, types, active, nodeStart, nodeNumbers, nodeIndex, nodeCount } = topology;
   const diagnostics: NetlistDiagnostic[] = [];
-  const index = (name: string): number => nodeIndex.get(name) ?? 0;
 
   // Loops of voltage-defined branches: a spanning forest of them, and any branch closing a cycle.
   let hasVoltageLoop = false;
   const forest = new DisjointSets(nodeCount);
   const forestEdges = new Map<number, { to: number; element: Element }[]>();
-  for (const element of active) {
-    if (!isVoltageDefined(element)) continue;
-    const a = index(element.nodes[0]);
-    const b = index(element.nodes[1]);
+  for (let i = 0; i < elements.length; i++) {
+    const type = types[i];
+    if (!active[i] || !(type === 'V' || type === 'L' || type === 'E' || type === 'H')) continue;
+    const element = elements[i];
+    const a = nodeNumbers[nodeStart[i]];
+    const b = nodeNumbers[nodeStart[i] + 1];
     if (forest.union(a, b)) {
       if (!forestEdges.has(a)) forestEdges.set(a, []);
       if (!forestEdges.has(b)) forestEdges.set(b, []);
@@ -117,7 +140,7 @@ export function diagnoseStructure(circuit: Circuit, active: Element[], nodeIndex
       code: 'unsolved-circuit',
       message:
         a === b
-          ? `${element.name} has both ends on node ${element.nodes[0]}: a shorted ${element.type === 'L' ? 'inductor' : 'voltage source'} leaves its current undetermined, so the circuit cannot be solved`
+          ? `${element.name} has both ends on node ${element.nodes[0]}: a shorted ${type === 'L' ? 'inductor' : 'voltage source'} leaves its current undetermined, so the circuit cannot be solved`
           : `${listNames(members.map((m) => m.name))} form a loop of ${what}: the current around it is undetermined, so the circuit cannot be solved`,
       location: element.location,
       related: path.map((m) => ({ location: m.location, message: `${m.name} is part of the loop` })),
@@ -126,20 +149,12 @@ export function diagnoseStructure(circuit: Circuit, active: Element[], nodeIndex
 
   // Nodes with no DC path to ground.
   const connected = new DisjointSets(nodeCount);
-  const elementsOnNode = new Map<number, Element[]>();
-  for (const element of circuit.elements) {
-    for (const node of element.nodes) {
-      const i = index(node);
-      if (i === 0) continue;
-      const list = elementsOnNode.get(i);
-      if (list) {
-        if (list[list.length - 1] !== element) list.push(element);
-      } else elementsOnNode.set(i, [element]);
-    }
-  }
-  for (const element of active) {
-    for (const [p, q] of dcConnections(element)) {
-      if (p < element.nodes.length && q < element.nodes.length) connected.union(index(element.nodes[p]), index(element.nodes[q]));
+  for (let i = 0; i < elements.length; i++) {
+    if (!active[i]) continue;
+    const first = nodeStart[i];
+    const nodes = nodeStart[i + 1] - first;
+    for (const [p, q] of dcPairs(types[i])) {
+      if (p < nodes && q < nodes) connected.union(nodeNumbers[first + p], nodeNumbers[first + q]);
     }
   }
   const groundRoot = connected.find(0);
@@ -154,22 +169,36 @@ export function diagnoseStructure(circuit: Circuit, active: Element[], nodeIndex
     if (island) island.push(name);
     else islands.set(root, [name]);
   }
+  if (islands.size === 0) return { diagnostics, floatingNodes, hasVoltageLoop };
+
+  // Only now, with something to report: which elements sit on which floating node.
+  const elementsOnNode = new Map<number, Element[]>();
+  for (let i = 0; i < elements.length; i++) {
+    for (let k = nodeStart[i]; k < nodeStart[i + 1]; k++) {
+      const node = nodeNumbers[k];
+      if (node === 0 || connected.find(node) === groundRoot) continue;
+      const list = elementsOnNode.get(node);
+      if (list) {
+        if (list[list.length - 1] !== elements[i]) list.push(elements[i]);
+      } else elementsOnNode.set(node, [elements[i]]);
+    }
+  }
   for (const nodes of islands.values()) {
-    const elements = [...new Set(nodes.flatMap((n) => elementsOnNode.get(index(n)) ?? []))];
+    const onIsland = [...new Set(nodes.flatMap((n) => elementsOnNode.get(nodeIndex.get(n) ?? 0) ?? []))];
     const subject = nodes.length === 1 ? `node ${nodes[0]} has` : `nodes ${listNames(nodes)} have`;
     const islandNodes = new Set(nodes);
-    const driver = elements.find((e) => (e.type === 'I' || e.type === 'G' || e.type === 'F') && e.nodes.slice(0, 2).some((n) => islandNodes.has(n)));
+    const driver = onIsland.find((e) => (e.type === 'I' || e.type === 'G' || e.type === 'F') && e.nodes.slice(0, 2).some((n) => islandNodes.has(n)));
     diagnostics.push({
       severity: 'warning',
       code: 'floating-node',
       message:
         `${subject} no DC path to ground` +
-        (elements.length ? ` (connected only through ${listNames(elements.map((e) => e.name))})` : ' (nothing simulated is connected)') +
+        (onIsland.length ? ` (connected only through ${listNames(onIsland.map((e) => e.name))})` : ' (nothing simulated is connected)') +
         (driver
           ? `; ${driver.name} drives current into it with nowhere to go, so it has no DC operating point and the voltages shown there are meaningless`
           : `; ${nodes.length === 1 ? 'its voltage is' : 'their voltages are'} undetermined at DC and solved as if tied to ground through a negligible conductance`),
-      location: circuitLocation(circuit, elements[0]),
-      related: elements.slice(1, MAXIMUM_NAMES_IN_MESSAGE).map((e) => ({ location: e.location, message: `${e.name} is on the floating node` })),
+      location: circuitLocation(circuit, onIsland[0]),
+      related: onIsland.slice(1, MAXIMUM_NAMES_IN_MESSAGE).map((e) => ({ location: e.location, message: `${e.name} is on the floating node` })),
     });
   }
   return { diagnostics, floatingNodes, hasVoltageLoop };
