@@ -447,3 +447,19 @@ ${ZENER}
     expect(Math.abs(reported - textbook)).toBeLessThan(0.05e-3); // the model's knee moves Vz by a few mV
   });
 });
+
+describe.runIf(ngspiceRuns)('typical ratings are not datasheets', () => {
+  it('only warns when a guessed class’s typical reverse rating is exceeded', () => {
+    const text = `a junction diode with no BV and no rating blocking 100 V
+V1 vin 0 -100
+D1 vin out JUNCTION
+RL out 0 10k
+.model JUNCTION D(IS=5n N=1.8 RS=0.05)
+.end
+`;
+    const [finding] = findingsOf(check(text), 'reverse-overvoltage');
+    expect(finding?.severity).toBe('warning');
+    expect(finding?.message).toContain('typical value for a small-signal diode'); // 75 V: typical value, from memory
+    expect(finding?.message).toContain('vrrm=');
+  });
+});

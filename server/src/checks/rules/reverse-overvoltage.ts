@@ -54,12 +54,15 @@ export const reverseOvervoltage: Rule = {
       }
       if (!rating) continue; // no reverse rating known: the report says so in the op output
       const derated = rating.value * context.settings.deratingMargin;
+      // A typical value for a guessed class is no datasheet: say so, and do not call it an error.
+      const typical = rating.source.origin === 'library';
+      const advice = typical ? ` Give the part's own rating (*pnlint: rating ${diode.element.model.name} vrrm=…) if it is higher.` : '';
       if (reverse > rating.value) {
-        push('error', `Reverse voltage across ${what} reaches ${peak} ${where}; rating ${describeRating('vrrm', rating)}.`);
+        push(typical ? 'warning' : 'error', `Reverse voltage across ${what} reaches ${peak} ${where}; rating ${describeRating('vrrm', rating)}.${advice}`);
       } else if (reverse > derated) {
         push(
           'warning',
-          `Reverse voltage across ${what} reaches ${peak} ${where}, above ${formatPercent(context.settings.deratingMargin)} of its rating ${describeRating('vrrm', rating)} (keep it below ${formatQuantity(derated, 'V')}).`,
+          `Reverse voltage across ${what} reaches ${peak} ${where}, above ${formatPercent(context.settings.deratingMargin)} of its rating ${describeRating('vrrm', rating)} (keep it below ${formatQuantity(derated, 'V')}).${advice}`,
         );
       }
     }
