@@ -129,28 +129,10 @@ export class SparseLU {
       return;
     }
     const work = this.work;
-    const rowAtStep = this.rowAtStep;
-    for (let k = 0; k < n; k++) work[k] = rhs[rowAtStep[k]];
-    const lowerStart = this.lowerStart;
-    const lowerRow = this.lowerRow;
-    const lowerValue = this.lowerValue;
-    for (let k = 0; k < n; k++) {
-      const value = work[k];
-      if (value === 0) continue;
-      for (let e = lowerStart[k], end = lowerStart[k + 1]; e < end; e++) work[lowerRow[e]] -= lowerValue[e] * value;
-    }
-    const upperStart = this.upperStart;
-    const upperRow = this.upperRow;
-    const upperValue = this.upperValue;
-    const diagonal = this.diagonal;
-    for (let k = n - 1; k >= 0; k--) {
-      const value = work[k] / diagonal[k];
-      work[k] = value;
-      if (value === 0) continue;
-      for (let e = upperStart[k], end = upperStart[k + 1]; e < end; e++) work[upperRow[e]] -= upperValue[e] * value;
-    }
-    const columnAtStep = this.columnAtStep;
-    for (let k = 0; k < n; k++) solution[columnAtStep[k]] = work[k];
+    gather(rhs, this.rowAtStep, work);
+    forwardSubstitute(this.lowerStart, this.lowerRow, this.lowerValue, work);
+    backSubstitute(this.upperStart, this.upperRow, this.upperValue, this.diagonal, work);
+    scatter(work, this.columnAtStep, solution);
   }
 
   /**
@@ -259,6 +241,36 @@ export class SparseLU {
 }
 
 // Small single-purpose loops, kept apart so that each is compiled on its own.
+
+/** work[k] = source[index[k]]. */
+function gather(source: Float64Array, index: Int32Array, work: Float64Array): void {
+  for (let k = 0; k < index.length; k++) work[k] = source[index[k]];
+}
+
+/** target[index[k]] = work[k]. */
+function scatter(work: Float64Array, index: Int32Array, target: Float64Array): void {
+  for (let k = 0; k < index.length; k++) target[index[k]] = work[k];
+}
+
+/** Solves L·y = work in place; L has a unit diagonal and is stored by columns. */
+function forwardSubstitute(start: Int32Array, row: Int32Array, value: Float64Array, work: Float64Array): void {
+  const n = start.length - 1;
+  for (let k = 0; k < n; k++) {
+    const known = work[k];
+    if (known === 0) continue;
+    for (let e = start[k], end = start[k + 1]; e < end; e++) work[row[e]] -= value[e] * known;
+  }
+}
+
+/** Solves U·x = work in place; U's diagonal apart, the rest stored by columns. */
+function backSubstitute(start: Int32Array, row: Int32Array, value: Float64Array, diagonal: Float64Array, work: Float64Array): void {
+  for (let k = start.length - 2; k >= 0; k--) {
+    const known = work[k] / diagonal[k];
+    work[k] = known;
+    if (known === 0) continue;
+    for (let e = start[k], end = start[k + 1]; e < end; e++) work[row[e]] -= value[e] * known;
+  }
+}
 
 function inversePermutation(order: Int32Array): Int32Array {
   const inverse = new Int32Array(order.length);
