@@ -81,11 +81,19 @@ describe('diode with a series resistor against the exact Lambert-W solution (Ban
     expectKirchhoff(text, point, 1e-6, 1e-12);
   });
 
-  it('a warm start from a nearby solution reaches the same exact current in fewer iterations', () => {
-    const text = netlist(5, 1000, tight);
+  it('a warm start from a nearby solution reaches the exact current in fewer iterations (RS adds to R in series)', () => {
+    const text = `series diode with RS
+V1 in 0 5
+R1 in a 998
+D1 a 0 DRS
+.model DRS D(IS=${SATURATION_CURRENT} N=${EMISSION} RS=2)
+${tight}
+.end
+`;
     const expected = exactCurrent(5, 1000, SATURATION_CURRENT, EMISSION, REFERENCE_TEMPERATURE);
     const cold = pointOf(text);
-    const warm = pointOf(text, undefined, { initialGuess: { in: 5, a: 1.03 } });
+    const warm = pointOf(text, undefined, { initialGuess: { in: 5, a: 1.04 } });
+    expect(Math.abs(cold.diodes.D1.current - expected) / expected).toBeLessThan(1e-7);
     expect(Math.abs(warm.diodes.D1.current - expected) / expected).toBeLessThan(1e-7);
     expect(warm.iterations).toBeLessThan(cold.iterations);
   });

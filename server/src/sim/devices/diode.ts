@@ -173,6 +173,8 @@ export class DiodeDevice implements Device {
   }
 
   warmStart(solution: Float64Array): void {
+    // The internal node is not among the caller's node names: start it at the anode.
+    if (this.junctionAnode !== this.anode) solution[this.junctionAnode] = solution[this.anode];
     this.stateVoltage = solution[this.junctionAnode] - solution[this.cathode];
     this.warm = true;
   }
