@@ -79,6 +79,27 @@ describe('include-aware checking', () => {
     expect(symbols.map((s) => s.name)).toEqual(['LAMP', 'DRED']);
   });
 
+  it('in a multi-root workspace, each file follows the pnlint.json at its own folder root', async () => {
+    const first = makeFolder({ 'board.cir': MAIN.replace('.include parts.inc\n', '') });
+    const second = makeFolder({ 'board.cir': MAIN.replace('.include parts.inc\n', '') });
+    cleanups.push(first.cleanup, second.cleanup);
+    const client = await startServer({ folders: [first.folder, second.folder], settings: { debounceMilliseconds: 0 } });
+    clients.push(client);
+    for (const folder of [first, second]) {
+      client.open(folder.uri('board.cir'), MAIN.replace('.include parts.inc\n', ''));
+      await client.diagnostics(folder.uri('board.cir'));
+    }
+    const secondBefore = client.publishedFor(second.uri('board.cir')).length;
+    const configBefore = client.publishedFor(first.uri('pnlint.json')).length;
+    // Not JSON: the first folder's file is re-checked and the mistake is shown in pnlint.json itself.
+    first.write('pnlint.json', '{ "ratings": ');
+    void client.connection.sendNotification('workspace/didChangeWatchedFiles', { changes: [{ uri: first.uri('pnlint.json'), type: 1 }] });
+    const config = await client.diagnostics(first.uri('pnlint.json'), { after: configBefore });
+    expect(config.diagnostics.map((d) => d.code)).toEqual(['directive']);
+    await new Promise((resolve) => setTimeout(resolve, 300));
+    expect(client.publishedFor(second.uri('board.cir')).length).toBe(secondBefore);
+  });
+
   it('in an untrusted workspace reads no include outside the workspace folders', async () => {
     const outside = mkdtempSync(join(tmpdir(), 'pnlint-outside-'));
     cleanups.push(() => rmSync(outside, { recursive: true, force: true }));
