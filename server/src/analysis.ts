@@ -6,6 +6,7 @@ import type { Circuit, FileReader, NetlistDiagnostic } from './netlist/circuit.j
 import { elaborate } from './netlist/index.js';
 import { checkCircuit, type CheckResult } from './checks/index.js';
 import { readWorkspaceConfig, type WorkspaceConfig } from './config.js';
+import { attachVerifiedFixes } from './fixes/index.js';
 import type { Finding } from './findings.js';
 import type { CancellationToken } from './sim/types.js';
 import { DEFAULT_SETTINGS, type Settings } from './settings.js';
@@ -70,7 +71,11 @@ export function analyze(input: AnalysisInput): Analysis {
   else {
     const options = input.cancellation ? { cancellation: input.cancellation } : {};
     check = checkCircuit(circuit, settings, config, options);
-    findings.push(...check.findings);
+    // Fixes are built after the check, each verified by its own re-check (server/src/fixes).
+    const checked = input.withoutFixes
+      ? check.findings
+      : attachVerifiedFixes(check, circuit, input.files, settings, config, { ...options, elaborate: elaborateOptions }).findings;
+    findings.push(...checked);
     complete = !input.cancellation?.isCancellationRequested;
   }
 
