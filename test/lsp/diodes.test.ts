@@ -65,6 +65,8 @@ describe('diodes in the editor', () => {
     const unlimited = diagnostics.find((d: Diagnostic) => d.code === 'led-current-unlimited');
     expect(unlimited?.range.start).toEqual({ line: 2, character: 2 });
     expect(unlimited?.severity).toBe(1);
+    // Its related location is the source that drives it: V1 on line 1.
+    expect(unlimited?.relatedInformation?.map((r) => [r.location.uri, r.location.range.start.line])).toEqual([[uri, 1]]);
     const actions = await client.request<CodeAction[]>('textDocument/codeAction', {
       textDocument: { uri },
       range: unlimited!.range,
