@@ -14,6 +14,12 @@ export const KIND_NAMES: Readonly<Record<DiodeKind, string>> = {
   signal: 'small-signal diode',
 };
 
+/** A kind's name opening a sentence: "Small-signal diode D4 carries …". */
+export function kindNameOpening(kind: DiodeKind): string {
+  const name = KIND_NAMES[kind];
+  return name.charAt(0).toUpperCase() + name.slice(1);
+}
+
 export const DIODE_RATING_KEYS = ['vrrm', 'if', 'ifsm', 'pd', 'vz', 'izt', 'izk', 'izm'] as const;
 export type DiodeRatingKey = (typeof DIODE_RATING_KEYS)[number];
 

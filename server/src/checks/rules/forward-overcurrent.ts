@@ -7,7 +7,7 @@ import { atCorner, type CheckContext } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
 import { forwardCurrent, worstCorner } from '../thresholds.js';
-import { KIND_NAMES } from '../vocabulary.js';
+import { kindNameOpening } from '../vocabulary.js';
 import { cornerSources } from './related.js';
 import type { Rule } from './rule.js';
 
@@ -28,7 +28,7 @@ export const forwardOvercurrent: Rule = {
         makeFinding(
           ID,
           typical ? 'warning' : 'error',
-          `${KIND_NAMES[diode.kind]} ${diode.element.name} carries ${formatQuantity(worst.value, 'A')} forward ${atCorner(worst.at.plan)}; rating ${describeRating('if', rating)}.${advice}`,
+          `${kindNameOpening(diode.kind)} ${diode.element.name} carries ${formatQuantity(worst.value, 'A')} forward ${atCorner(worst.at.plan)}; rating ${describeRating('if', rating)}.${advice}`,
           diode.element.location,
           { element: diode.element.name, related: cornerSources(context, worst.at.plan) },
         ),

@@ -10,7 +10,7 @@ import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
 import { feedResistors, seriesResistors } from '../topology.js';
 import { worstCorner } from '../thresholds.js';
-import { KIND_NAMES } from '../vocabulary.js';
+import { kindNameOpening } from '../vocabulary.js';
 import { cornerSources, nodesAt } from './related.js';
 import type { Rule } from './rule.js';
 
@@ -46,7 +46,7 @@ export const overdissipation: Rule = {
         makeFinding(
           ID,
           typical ? 'warning' : 'error',
-          `${KIND_NAMES[diode.kind]} ${diode.element.name} dissipates ${formatQuantity(worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
+          `${kindNameOpening(diode.kind)} ${diode.element.name} dissipates ${formatQuantity(worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
           diode.element.location,
           { element: diode.element.name, related: cornerSources(context, worst.at.plan) },
         ),

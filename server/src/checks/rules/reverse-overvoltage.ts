@@ -9,7 +9,7 @@ import { formatPercent, formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
-import { KIND_NAMES } from '../vocabulary.js';
+import { KIND_NAMES, kindNameOpening } from '../vocabulary.js';
 import { cornerSources } from './related.js';
 import type { Rule } from './rule.js';
 
@@ -49,7 +49,7 @@ export const reverseOvervoltage: Rule = {
       };
       if (breakdown) {
         const point = breakdown.at.point;
-        push('error', `${what} is driven into reverse breakdown ${where} (${formatQuantity(-point.voltage, 'V')} reverse, ${formatQuantity(-point.current, 'A')})${rating ? `; rating ${describeRating('vrrm', rating)}` : ''}.`);
+        push('error', `${kindNameOpening(diode.kind)} ${name} is driven into reverse breakdown ${where} (${formatQuantity(-point.voltage, 'V')} reverse, ${formatQuantity(-point.current, 'A')})${rating ? `; rating ${describeRating('vrrm', rating)}` : ''}.`);
         continue;
       }
       if (!rating) continue; // no reverse rating known: the report says so in the op output

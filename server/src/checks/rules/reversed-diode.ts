@@ -17,7 +17,7 @@ import {
   SUPPLY_SHORT_RESISTANCE,
   worstCorner,
 } from '../thresholds.js';
-import { KIND_NAMES } from '../vocabulary.js';
+import { kindNameOpening } from '../vocabulary.js';
 import { cornerSources } from './related.js';
 import type { Rule } from './rule.js';
 
@@ -74,7 +74,7 @@ function drivenForwardIntoShort(context: CheckContext, diode: CheckedDiode): Fin
   return makeFinding(
     ID,
     'error',
-    `${KIND_NAMES[diode.kind]} ${name} is driven forward with ${current} ${where} through next to nothing (${formatQuantity(thevenin.resistance, 'Ω')}): it shorts the supply. A clamp or protection diode across a supply must be reverse-biased; turn it around.`,
+    `${kindNameOpening(diode.kind)} ${name} is driven forward with ${current} ${where} through next to nothing (${formatQuantity(thevenin.resistance, 'Ω')}): it shorts the supply. A clamp or protection diode across a supply must be reverse-biased; turn it around.`,
     diode.element.location,
     { element: name, related },
   );
@@ -120,7 +120,7 @@ function reversedVerdict(context: CheckContext, diode: CheckedDiode, best: { cur
   if (!isLed && best.current >= SUPPLY_SHORT_CURRENT) return undefined; // turned around it would short a supply: an intentional clamp
   const nominal = diode.corners[0];
   const reverse = nominal && nominal.point.voltage < 0 ? ` (${formatQuantity(-nominal.point.voltage, 'V')} reverse ${atCorner(nominal.plan)})` : '';
-  const what = `${KIND_NAMES[diode.kind]} ${element.name}`;
+  const what = `${kindNameOpening(diode.kind)} ${element.name}`;
   return makeFinding(
     ID,
     isLed ? 'error' : 'warning',
