@@ -205,7 +205,10 @@ class FieldParser extends EmbeddedActionsParser {
   private readonly assignmentAfterValue = (): Field => this.SUBRULE1(this.assignedValue);
   private readonly groupAfterWord = (): GroupField => this.SUBRULE(this.group);
 
-  /** A word, a named group `SIN(…)`, and either of them as the key of `key=value`. */
+  /**
+   * A word, a named group `SIN(…)`, and either of them as the key of `key=value`. A word
+   * followed by `(` names the group with or without white space between (`SIN (0 1 1k)`).
+   */
   wordField = this.RULE('wordField', (): Field => {
     const token = this.CONSUME(Word);
     const group = this.OPTION(this.groupAfterWord);

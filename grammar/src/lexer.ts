@@ -88,7 +88,6 @@ export const TitleNewline = createToken({
   pattern: /\r\n|\r|\n/,
   line_breaks: true,
   push_mode: MAIN_MODE,
-  categories: [Newline],
 });
 
 /** `.control` … `.endc`: an opaque script. Matched whole, so that nothing inside is read as circuit. */
