@@ -131,13 +131,8 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
     checker.recheckAll();
   });
 
-  documents.onDidOpen((event) => {
-    checker.schedule(event.document.uri);
-    // Its editor text now replaces what was read from disk for the files that include it.
-    checker.recheckDependents(event.document.uri);
-  });
+  // Fired on open too: an opened file's editor text also replaces what its includers read from disk.
   documents.onDidChangeContent((event) => {
-    if (event.document.version === 1 && !checker.latest(event.document.uri)) return; // the open event's own content event
     context.forget(event.document.uri);
     checker.schedule(event.document.uri);
     checker.recheckDependents(event.document.uri);
