@@ -463,3 +463,19 @@ RL out 0 10k
     expect(finding?.message).toContain('vrrm=');
   });
 });
+
+describe.runIf(ngspiceRuns)('a diode that cannot be checked says why', () => {
+  it('notes a rectifier with no reverse rating blocking 60 V', () => {
+    const text = `rectifier with no BV and no rating
+V1 vin 0 -60
+D1 vin out PLAIN
+RL out 0 10k
+*pnlint: rating PLAIN kind=rectifier
+.model PLAIN D(IS=5n N=1.8 RS=0.05)
+.end
+`;
+    const [finding] = findingsOf(check(text), 'reverse-overvoltage');
+    expect(finding?.severity).toBe('info');
+    expect(finding?.message).toContain('no reverse rating is known');
+  });
+});

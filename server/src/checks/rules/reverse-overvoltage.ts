@@ -15,6 +15,9 @@ import type { Rule } from './rule.js';
 
 const ID = 'reverse-overvoltage';
 
+/** An unrated diode blocking at least this gets a note that it was not checked (ours: below it any diode is fine). */
+export const UNRATED_REVERSE_NOTICE = 5;
+
 export const reverseOvervoltage: Rule = {
   id: ID,
   check(context: CheckContext): Finding[] {
@@ -52,7 +55,21 @@ export const reverseOvervoltage: Rule = {
         push('error', `${kindNameOpening(diode.kind)} ${name} is driven into reverse breakdown ${where} (${formatQuantity(-point.voltage, 'V')} reverse, ${formatQuantity(-point.current, 'A')})${rating ? `; rating ${describeRating('vrrm', rating)}` : ''}.`);
         continue;
       }
-      if (!rating) continue; // no reverse rating known: the report says so in the op output
+      if (!rating) {
+        // Nothing to compare with: say so rather than pass it silently.
+        if (reverse >= UNRATED_REVERSE_NOTICE) {
+          findings.push(
+            makeFinding(
+              ID,
+              'info',
+              `Reverse voltage across ${what} reaches ${peak} ${where}, but no reverse rating is known (no BV in model ${diode.element.model.name}, no directive), so it is not checked. Give it with *pnlint: rating ${diode.element.model.name} vrrm=….`,
+              diode.element.location,
+              { element: name, related },
+            ),
+          );
+        }
+        continue;
+      }
       const derated = rating.value * context.settings.deratingMargin;
       // A typical value for a guessed class is no datasheet: say so, and do not call it an error.
       const typical = rating.source.origin === 'library';
