@@ -84,6 +84,17 @@ describe('editor features', () => {
     expect(hover).toContain('`r` = `{rled}`');
   });
 
+  it('hover on a rule id or rating key in a directive explains it', async () => {
+    client.change(uri, 10, [{ range: { start: { line: 13, character: 0 }, end: { line: 13, character: 0 } }, text: '*pnlint: ignore reversed-diode -- bench fixture\n*pnlint: rating D3 vrrm=50\n' }]);
+    const rule = text(await client.request<Hover | null>('textDocument/hover', at(13, 20)));
+    expect(rule).toContain('**reversed-diode**');
+    // product.md's rating keys are datasheet symbols: vrrm is VRRM, the repetitive peak reverse voltage, in volts.
+    const key = text(await client.request<Hover | null>('textDocument/hover', at(14, 20)));
+    expect(key).toContain('VRRM');
+    expect(key).toContain('(V)');
+    client.change(uri, 11, [{ text: BOARD }]);
+  });
+
   it('goes to the definitions of models, subcircuits, parameters and included files', async () => {
     const model = await client.request<Location[] | null>('textDocument/definition', at(5, 8));
     expect(model).toEqual([{ uri, range: { start: { line: 2, character: 7 }, end: { line: 2, character: 11 } } }]);
@@ -112,7 +123,7 @@ describe('editor features', () => {
 
   it('completes model names where a diode takes one, subcircuits on X lines, dot commands, and directive words', async () => {
     const edited = BOARD.replace('.end\n', 'D4 in 0 \nX2 in 0 \n.\n*pnlint: ignore \n*pnlint: rating D3 \n.end\n');
-    client.change(uri, 2, [{ text: edited }]);
+    client.change(uri, 12, [{ text: edited }]);
     const labels = async (line: number, character: number) =>
       (await client.request<CompletionItem[]>('textDocument/completion', at(line, character))).map((item) => item.label);
     expect(await labels(13, 8)).toEqual(expect.arrayContaining(['DRED', 'DAMBER']));
@@ -121,6 +132,6 @@ describe('editor features', () => {
     expect(await labels(16, 16)).toEqual(expect.arrayContaining(['reversed-diode', 'led-current-unlimited', 'zener-underbiased']));
     // product.md's rating keys
     expect(await labels(17, 19)).toEqual(expect.arrayContaining(['vrrm=', 'if=', 'ifsm=', 'pd=', 'vz=', 'izt=', 'izk=', 'izm=', 'kind=']));
-    client.change(uri, 3, [{ text: BOARD }]);
+    client.change(uri, 13, [{ text: BOARD }]);
   });
 });
