@@ -38,3 +38,13 @@ describe.runIf(ngspiceRuns)('demo netlists', () => {
     }
   });
 });
+
+describe('rule pages', () => {
+  it('exist for every rule id a finding can carry (the diagnostics link to them)', async () => {
+    const { RULE_IDS } = await import('../../server/src/rule-ids.js');
+    for (const id of RULE_IDS) {
+      const page = readFileSync(fileURLToPath(new URL(`../../server/docs/rules/${id}.md`, import.meta.url)), 'utf8');
+      expect(page.startsWith(`# ${id}\n`), id).toBe(true);
+    }
+  });
+});
