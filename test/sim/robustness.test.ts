@@ -4,6 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Circuit } from '../../server/src/netlist/circuit.js';
 import { compileCircuit, solveOperatingPoint } from '../../server/src/sim/index.js';
+import { resistorDiodeLadder } from '../support/ladder.mjs';
 import { circuitOf, expectKirchhoff, pointOf, solveText } from './helpers.js';
 
 function codes(result: { diagnostics: { code: string }[] }): string[] {
@@ -108,6 +109,15 @@ describe('budgets, iteration caps and cancellation', () => {
     const later = solveText(text, undefined, { cancellation: { get isCancellationRequested() { return ++checks > 2; } } });
     expect(later.ok).toBe(false);
     expect(messageOf(later, 'unsolved-circuit')).toMatch(/cancelled/);
+  });
+
+  it('when plain Newton runs out of iterations, gmin stepping still reaches the reference answer', () => {
+    // A 50-section ladder needs about a dozen plain iterations; 8 per attempt forces gmin stepping.
+    const ladder = resistorDiodeLadder(50).replace('.end', '.options reltol=1e-9 vntol=1e-12 abstol=1e-18\n.end');
+    const point = pointOf(ladder, undefined, { iterationLimit: 8 });
+    expect(point.method).toBe('gmin-stepping');
+    expect(point.nodes.n1).toBeCloseTo(1.002841333084583, 9); // ngspice 39
+    expect(point.nodes.n50).toBeCloseTo(5.353822400180083e-1, 9); // ngspice 39
   });
 
   it('without limits the same circuit solves and obeys KCL', () => {

@@ -157,8 +157,9 @@ export function solveOperatingPoint(compiled: CompiledCircuit, corner: Corner = 
         return fail(`the solution overflowed at ${system.describe(outcome.unknown)}: the circuit has no finite operating point as written`, outcome.unknown);
       case 'iteration-limit':
         return fail(
-          `no DC operating point found after ${attempt.iterations} Newton iterations (plain, gmin stepping and source stepping); the solution kept moving most at ${system.describe(outcome.unknown)}`,
-          outcome.unknown,
+          `no DC operating point found after ${attempt.iterations} Newton iterations (plain, gmin stepping and source stepping)` +
+            (outcome.unknown > 0 ? `; the solution kept moving most at ${system.describe(outcome.unknown)}` : ''),
+          outcome.unknown > 0 ? outcome.unknown : undefined,
         );
     }
   } catch (error) {
