@@ -211,6 +211,12 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
       skipping = true;
       continue;
     }
+    if (type === InlineComment && (afterBreak || !current)) {
+      // A line holding only a `;` or `$` comment reads as a comment line, and like one it
+      // may stand between a line and its continuation.
+      if (!skipping || afterBreak) items.push({ kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) });
+      continue;
+    }
     if (afterBreak) {
       afterBreak = false;
       skipping = false;
@@ -228,20 +234,17 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
       items.push(controlStatement(token, maker, diagnostics));
       continue;
     }
-    if (type === EndAndRest) {
-      const word = /^\.end/i.exec(token.image)![0];
-      items.push({ kind: 'end', range: maker.index.range(token.startOffset, token.startOffset + word.length) });
-      finish();
-      continue;
-    }
     if (type === InlineComment) {
       if (current) {
         current.comment = token;
         current.end = token.startOffset + token.image.length;
-      } else {
-        // A line holding only a `;` or `$` comment reads as a comment line.
-        items.push({ kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) });
       }
+      continue;
+    }
+    if (type === EndAndRest) {
+      const word = /^\.end/i.exec(token.image)![0];
+      items.push({ kind: 'end', range: maker.index.range(token.startOffset, token.startOffset + word.length) });
+      finish();
       continue;
     }
     if (!current) {

@@ -71,6 +71,17 @@ describe('comments', () => {
   });
 });
 
+describe('comment-only lines of ; and $', () => {
+  test('a line holding only a ; comment is a comment, and may stand before a continuation like a * line', () => {
+    const text = 'title\nR1 a b\n; value on the next line\n+ 1k\n';
+    const result = parse(text);
+    expect(result.diagnostics).toEqual([]);
+    expect(result.statements.map((statement) => statement.kind)).toEqual(['title', 'element', 'comment']);
+    expect(result.statements[2]).toMatchObject({ kind: 'comment', text: ' value on the next line' });
+    expect(element(result.statements).fields).toHaveLength(3);
+  });
+});
+
 describe('continuation lines', () => {
   test('a statement spans its + lines; each field keeps the range where it is written', () => {
     const text = 'title\nD1 anode\n+ cathode\n  +   DLED\n';
