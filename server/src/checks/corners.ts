@@ -140,6 +140,16 @@ export function planCorners(
   supplies: readonly SupplyLimits[],
   resistorTolerances: ReadonlyMap<string, number>,
 ): CornerPlan[] {
+  return cornerPlanning(circuit, settings, supplies, resistorTolerances).plans;
+}
+
+/** The corners, and how many were left out to stay within MAXIMUM_CORNERS (the caller reports it). */
+export function cornerPlanning(
+  circuit: Circuit,
+  settings: Settings,
+  supplies: readonly SupplyLimits[],
+  resistorTolerances: ReadonlyMap<string, number>,
+): { plans: CornerPlan[]; leftOut: number } {
   const sources = circuit.elements.filter((element): element is IndependentSource => element.type === 'V' || element.type === 'I');
   const varying: SourceLevel[][] = [];
   for (const source of sources) {
@@ -160,10 +170,9 @@ export function planCorners(
   const temperatures = [...new Set([circuit.temperature, ...settings.temperatures])];
   const resistorSides: (-1 | 0 | 1)[] = resistorTolerances.size > 0 ? [0, -1, 1] : [0];
 
+  const wanted = sourceSets.length * resistorSides.length * temperatures.length;
   let sets = sourceSets;
-  if (sets.length * resistorSides.length * temperatures.length > MAXIMUM_CORNERS) {
-    sets = sourceSets.filter((set) => set.length <= 1);
-  }
+  if (wanted > MAXIMUM_CORNERS) sets = sourceSets.filter((set) => set.length <= 1);
   const plans: CornerPlan[] = [];
   for (const temperature of temperatures) {
     for (const resistorSide of resistorSides) {
@@ -173,7 +182,7 @@ export function planCorners(
       }
     }
   }
-  return plans;
+  return { plans, leftOut: wanted - plans.length };
 }
 
 function combinations(extremes: SourceLevel[][]): SourceLevel[][] {

@@ -9,7 +9,7 @@ import { hazardCautions } from './cautions.js';
 import { solveWithHeldCharge } from './held-charge.js';
 import { classifyDiode, probeForwardVoltage } from './classify.js';
 import { atCorner, replaceElement, probeSource, THEVENIN_PROBE_STEP, type CheckContext, type CheckedDiode, type DiodeAtCorner } from './context.js';
-import { planCorners, type CornerPlan, type SupplyLimits } from './corners.js';
+import { cornerPlanning, type CornerPlan, type SupplyLimits } from './corners.js';
 import { readDirectives, type Directives } from './directives.js';
 import { defaultSolver } from './engine.js';
 import { makeFinding } from './finding.js';
@@ -121,7 +121,17 @@ export function checkWith(
     resistors.set(element.name, ratings);
     if (ratings.tolerance && ratings.tolerance.value > 0) resistorTolerances.set(element.name, ratings.tolerance.value);
   }
-  const plans = planCorners(circuit, settings, supplyLimits(circuit, directives, config), resistorTolerances);
+  const { plans, leftOut } = cornerPlanning(circuit, settings, supplyLimits(circuit, directives, config), resistorTolerances);
+  if (leftOut > 0 && circuit.elements[0]) {
+    findings.push(
+      makeFinding(
+        'unsolved-circuit',
+        'info',
+        `${leftOut} combinations of source extremes, resistor tolerances and temperatures were left out: only ${plans.length} corners are solved per check.`,
+        { uri: circuit.uri, range: circuit.elements[0].location.range },
+      ),
+    );
+  }
   const solveOptions: SolveOptions = {};
   if (options.budgetMilliseconds !== undefined) solveOptions.budgetMilliseconds = options.budgetMilliseconds;
   if (options.iterationLimit !== undefined) solveOptions.iterationLimit = options.iterationLimit;
