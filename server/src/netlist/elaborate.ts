@@ -19,7 +19,8 @@ import {
 import { GROUND, type Circuit, type DirectiveComment, type Element, type FileReader, type Model, type SourceLocation } from './circuit.js';
 import { DiagnosticSink } from './diagnostics.js';
 import { readElement, type ElementContext, type NodeField } from './elements.js';
-import { formatQuantity, formatSpiceNumber, unitOfElement } from './format.js';
+import { formatSpiceNumber, unitOfElement } from './format.js';
+import { formatQuantity } from '../units.js';
 import { readModel } from './models.js';
 import { ParameterEvaluation, ParameterScope } from './parameters.js';
 import { isWithin } from './paths.js';
@@ -30,6 +31,9 @@ export interface ElaborateOptions {
   restricted?: boolean;
   workspaceRoot?: string;
 }
+
+/** A value's exact reading is shown with all the digits it was written with, not the usual three. */
+const EXACT_READING_DIGITS = 12;
 
 /** SPICE's default circuit temperature, 27 °C (SPICE3 user's manual, Quarles 1989). */
 export const DEFAULT_TEMPERATURE = 27;
@@ -644,17 +648,17 @@ class Elaborator {
     const unit = unitOfElement(letter);
     const intended = this.intendedReading(text, letter);
     let message = inExpression
-      ? `${text} is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads ${formatQuantity(reading.value, unit)}, ignoring the ${reading.ignored})`
-      : `${text} is read as ${formatQuantity(reading.value, unit)} by SPICE engines (the ${reading.ignored} is ignored)`;
+      ? `${text} is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads ${formatQuantity(reading.value, unit, EXACT_READING_DIGITS)}, ignoring the ${reading.ignored})`
+      : `${text} is read as ${formatQuantity(reading.value, unit, EXACT_READING_DIGITS)} by SPICE engines (the ${reading.ignored} is ignored)`;
     const suggestions: { title: string; edits: { location: SourceLocation; newText: string }[] }[] = [];
     const location = { uri, range };
     if (intended) {
-      message += `; ${intended.convention} it means ${formatQuantity(intended.value, unit)}`;
+      message += `; ${intended.convention} it means ${formatQuantity(intended.value, unit, EXACT_READING_DIGITS)}`;
       const exact = formatSpiceNumber(intended.value);
-      suggestions.push({ title: `Write ${exact} (${formatQuantity(intended.value, unit)})`, edits: [{ location, newText: exact }] });
+      suggestions.push({ title: `Write ${exact} (${formatQuantity(intended.value, unit, EXACT_READING_DIGITS)})`, edits: [{ location, newText: exact }] });
     }
     const engine = formatSpiceNumber(reading.value);
-    suggestions.push({ title: `Write ${engine} (${formatQuantity(reading.value, unit)}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
+    suggestions.push({ title: `Write ${engine} (${formatQuantity(reading.value, unit, EXACT_READING_DIGITS)}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
     this.sink.report(inExpression ? 'error' : 'warning', 'ambiguous-value', uri, range, message, { suggestions });
   }
 

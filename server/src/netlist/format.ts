@@ -1,18 +1,17 @@
-// Numbers as the netlist module writes them: in SPICE notation for edits
-// (`4.7k`, `2.2Meg`: SPICE reads `M` as milli) and in engineering notation
-// with a unit for messages (`4.7 kΩ`).
+// Numbers as the netlist module writes them into a netlist: SPICE notation for edits
+// (`4.7k`, `2.2Meg`: SPICE reads `M` as milli). Messages use `units.ts`.
 
-const SPICE_SCALES: readonly { factor: number; spice: string; si: string }[] = [
-  { factor: 1e12, spice: 'T', si: 'T' },
-  { factor: 1e9, spice: 'G', si: 'G' },
-  { factor: 1e6, spice: 'Meg', si: 'M' },
-  { factor: 1e3, spice: 'k', si: 'k' },
-  { factor: 1, spice: '', si: '' },
-  { factor: 1e-3, spice: 'm', si: 'm' },
-  { factor: 1e-6, spice: 'u', si: 'µ' },
-  { factor: 1e-9, spice: 'n', si: 'n' },
-  { factor: 1e-12, spice: 'p', si: 'p' },
-  { factor: 1e-15, spice: 'f', si: 'f' },
+const SPICE_SCALES: readonly { factor: number; spice: string }[] = [
+  { factor: 1e12, spice: 'T' },
+  { factor: 1e9, spice: 'G' },
+  { factor: 1e6, spice: 'Meg' },
+  { factor: 1e3, spice: 'k' },
+  { factor: 1, spice: '' },
+  { factor: 1e-3, spice: 'm' },
+  { factor: 1e-6, spice: 'u' },
+  { factor: 1e-9, spice: 'n' },
+  { factor: 1e-12, spice: 'p' },
+  { factor: 1e-15, spice: 'f' },
 ];
 
 /** Significant digits kept when writing a number: enough for any E192 value, short enough to read. */
@@ -34,11 +33,6 @@ export function formatSpiceNumber(value: number): string {
   return mantissa + scale.spice;
 }
 
-/** `4000, 'Ω'` → `4 kΩ`. */
-export function formatQuantity(value: number, unit: string): string {
-  const { mantissa, scale } = split(value);
-  return `${mantissa} ${scale.si}${unit}`.trimEnd();
-}
 
 /** The unit of an element's main value, by element letter. */
 export function unitOfElement(letter: string): string {

@@ -6,6 +6,6 @@ export { ParameterScope, ParameterEvaluation } from './parameters.js';
 export { readElement, RESISTANCE_WITHOUT_VALUE, REACTANCE_WITHOUT_VALUE, DEFAULT_MOSFET_WIDTH, DEFAULT_MOSFET_LENGTH, type ElementContext } from './elements.js';
 export { readModel, describeModelType, isSimulatedModel, MODEL_TYPES_BY_LETTER, SIMULATED_MOSFET_LEVEL } from './models.js';
 export { buildWaveform, valueAtTimeZero, TIMES_WITHOUT_TRANSIENT, type TransientTimes } from './waveforms.js';
-export { formatSpiceNumber, formatQuantity, unitOfElement } from './format.js';
+export { formatSpiceNumber, unitOfElement } from './format.js';
 export { DiagnosticSink } from './diagnostics.js';
 export { isWithin } from './paths.js';
