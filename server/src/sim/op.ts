@@ -219,7 +219,6 @@ function solveWithContinuation(compiled: CompiledCircuit, state: NewtonState, se
 
 type Run = (overrides: Partial<NewtonSettings>) => NewtonOutcome;
 
-
 /** A continuation step that converged within a quarter of its cap was easy: the next may be bolder (ngspice 39). */
 function quickStep(limit: number): number {
   return limit / 4;
