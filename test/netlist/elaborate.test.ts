@@ -440,7 +440,7 @@ describe('diagnostics a user should get', () => {
     const text = 't\n.param rpull=4k7\nR2 a 0 {rpull}\n';
     const ambiguous = problems(elaborateText(text), 'ambiguous-value');
     expect(ambiguous.map((d) => [d.severity, d.message, where(d)])).toEqual([
-      ['error', '4k7 is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads 4 k, ignoring the 7); as a resistor marking code (IEC 60062) it means 4.7 k', spanOf(text, '4k7')],
+      ['error', '4k7 is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads 4k, ignoring the 7); as a resistor marking code (IEC 60062) it means 4.7k', spanOf(text, '4k7')],
     ]);
     expect(ambiguous[0]!.suggestions![0]!.edits[0]!.newText).toBe('4.7k');
   });
