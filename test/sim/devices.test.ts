@@ -25,6 +25,11 @@ describe('level-1 diode', () => {
     expect(pointOf(text).nodes.a).toBeCloseTo(0.8063020460195978, 6); // ngspice 39
   });
 
+  it('high injection (IKF) with area: ngspice 39 gives 0.9435714093593609 V at 50 mA', () => {
+    const text = `knee current\nI1 0 a 50m\nD1 a 0 DK area=2\n.model DK D(IS=1e-14 N=1.2 IKF=10m RS=0.5)\n${TIGHT}\n.end\n`;
+    expect(pointOf(text).nodes.a).toBeCloseTo(0.9435714093593609, 6); // ngspice 39
+  });
+
   it('a silicon junction drops about 0.7 V at a few mA and about 2 mV less per kelvin (common practice, no source)', () => {
     const text = `silicon diode\nI1 0 a 5m\nD1 a 0 DSI\n.model DSI D(IS=1e-14)\n.end\n`;
     const cool = pointOf(text, { name: 'cool', temperature: 25 });
