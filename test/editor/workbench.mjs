@@ -92,6 +92,7 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
     await row.first().waitFor();
     const text = await row.first().textContent();
     if (!text?.includes(LED_RULE)) throw new Error(`the Problems entry reads ${JSON.stringify(text)}`);
+    process.stdout.write(`     Problems panel: ${text.trim()}\n`);
     await shoot('02-problems-panel.png');
     await page.keyboard.press('Control+Shift+M'); // close the panel again
     await page.locator('.markers-panel').first().waitFor({ state: 'hidden', timeout: 5_000 }).catch(() => {});
@@ -104,10 +105,13 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
     await page.mouse.move(box.x + 4, box.y + box.height / 2);
     const hover = page.locator('.monaco-hover:not(.hidden) .monaco-hover-content, .monaco-hover:not(.hidden) .hover-contents').first();
     await hover.waitFor({ state: 'visible' });
-    const text = (await page.locator('.monaco-hover:not(.hidden)').first().textContent()) ?? '';
-    // Both the finding under the squiggle and the server's own hover on the diode.
-    if (!text.includes(LED_RULE)) throw new Error(`the hover does not show the finding: ${JSON.stringify(text.slice(0, 300))}`);
-    if (!/\bD1\b[^]*\bdiode\b/i.test(text)) throw new Error(`the hover does not describe D1: ${JSON.stringify(text.slice(0, 300))}`);
+    // Both the finding under the squiggle and the server's own hover on the diode; the
+    // workbench shows the first at once and adds the second when the server answers.
+    const hoverText = async () => (await page.locator('.monaco-hover:not(.hidden)').first().textContent()) ?? '';
+    const complete = (text) => text.includes(LED_RULE) && /\bD1\b[^]*\bdiode\b/i.test(text);
+    await waitUntil(async () => complete(await hoverText()), 'the finding and the diode description in the hover').catch(async (error) => {
+      throw new Error(`${error.message}; the hover reads ${JSON.stringify((await hoverText()).slice(0, 400))}`);
+    });
     await shoot('03-hover.png');
     await shoot('hover-editor.png', editor);
     await page.mouse.move(5, 5);

@@ -15,7 +15,7 @@ const LED_RATING_AMPERES = 20e-3;
 /** Below about 1 mA an indicator LED is barely visible (common practice, no source). */
 const LED_VISIBLE_AMPERES = 1e-3;
 /** How long to wait for the server's answer after opening or editing (generous: 2 shared cores). */
-const ANALYSIS_WAIT_MILLISECONDS = 30_000;
+const ANALYSIS_WAIT_MILLISECONDS = 20_000;
 
 interface PnlintApi {
   client(): { isRunning(): boolean } | undefined;
