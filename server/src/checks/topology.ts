@@ -48,7 +48,11 @@ export function buildTopology(circuit: Circuit): Topology {
   return { connections, rails, inductorSpans: inductorSpans(connections, rails, circuit.elements) };
 }
 
-const otherNode = (element: Element, node: string) => (element.nodes[0] === node ? element.nodes[1] : element.nodes[0]);
+/** The other current-carrying terminal of a two-terminal path (a MOSFET's source for its drain, not its gate). */
+const otherNode = (element: Element, node: string) => {
+  const [first, second] = currentNodes(element);
+  return first === node ? second : first;
+};
 
 /**
  * Walks from `start` away from `from` while each node on the way is a plain series
