@@ -111,3 +111,27 @@ ${SIGNAL}
     expect(findingsOf(check(reversedSeries(''), { settings: { severities: { 'reversed-diode': 'error' } } }), 'reversed-diode')[0]?.severity).toBe('error');
   });
 });
+
+describe('subcircuits', () => {
+  const board = `two indicator cells from one subcircuit
+.subckt INDICATOR vcc gnd rlim=1k
+R1 vcc a {rlim}
+*pnlint: rating D1 if=10m
+D1 a gnd LEDRED
+.ends
+V1 rail 0 5
+X1 rail 0 INDICATOR rlim=1k
+X2 rail 0 INDICATOR rlim=100
+.model LEDRED D(IS=1e-20 N=1.8 RS=2 BV=5 IBV=10u)
+.end
+`;
+  it('names the instance that fails by its hierarchical name, with the directive written inside the subcircuit', () => {
+    const findings = findingsOf(check(board), 'led-current-unlimited');
+    expect(findings.map((finding) => finding.element)).toEqual(['X2.D1']);
+    expect(findings[0]!.message).toContain('rating IF 10 mA from directive on line 4');
+  });
+  it('lets an ignore inside the subcircuit silence every instance', () => {
+    const ignored = board.replace('*pnlint: rating D1 if=10m', '*pnlint: rating D1 if=10m\n*pnlint: ignore led-current-unlimited');
+    expect(findingsOf(check(ignored), 'led-current-unlimited')).toEqual([]);
+  });
+});
