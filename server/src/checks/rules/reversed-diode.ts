@@ -86,7 +86,7 @@ function isSuspect(context: CheckContext, diode: CheckedDiode, partners: Conduct
   if (!worst || worst.value >= CONDUCTION_THRESHOLD) return false;
   const element = diode.element;
   if (diode.kind !== 'led' && !isSeriesDiode(context, element)) return false;
-  if (bridgesInductor(context.topology, element)) return false; // a freewheel diode is reverse-biased at DC by design
+  if (diode.kind !== 'led' && bridgesInductor(context.topology, element)) return false; // a freewheel diode is reverse-biased at DC by design
   return !hasConductingPartner(partners, diode); // diode-OR or reverse-protection partner
 }
 
