@@ -162,6 +162,11 @@ describe('odd inputs never throw', () => {
     expect(result.diagnostics.length).toBeGreaterThan(0);
   });
 
+  it('a diode model with IS = 0 solves as an open junction, without NaN', () => {
+    const point = pointOf('dead junction\nV1 a 0 5\nR1 a b 1k\nD1 b 0 DNONE\nR2 b 0 1k\n.model DNONE D(IS=0)\n.end\n');
+    expect(point.nodes.b).toBeCloseTo(2.5, 6); // only gmin across D1: the 1k/1k divider (Ohm's law)
+  });
+
   it('random resistor, diode and source networks: each solves with KCL holding, or says why not', () => {
     let seed = 12345;
     const random = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);

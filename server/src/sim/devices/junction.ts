@@ -106,6 +106,8 @@ export function thermalVoltage(temperature: number): number {
 
 /** Critical voltage of a junction, where its current curve turns sharpest (Nagel 1975): vte·ln(vte/(√2·Is)). */
 export function criticalVoltage(emissionThermalVoltage: number, saturationCurrent: number): number {
+  // A junction with no saturation current never conducts: start it at zero rather than at infinity.
+  if (!(saturationCurrent > 0) || !Number.isFinite(saturationCurrent)) return 0;
   return emissionThermalVoltage * Math.log(emissionThermalVoltage / (Math.SQRT2 * saturationCurrent));
 }
 
