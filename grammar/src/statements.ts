@@ -95,7 +95,15 @@ export function needsFields(line: LogicalLine): boolean {
   if (line.tooDeep) return false;
   const command = dotCommandOf(line);
   if (command !== undefined) return !RAW_COMMANDS.has(command);
-  return startsWithLetter(line);
+  return startsWithLetter(line) && !isBehaviouralSource(line);
+}
+
+/**
+ * A B element (behavioural source): `V=`/`I=` take an expression that ngspice 39 reads
+ * without braces too (`B1 a 0 V=(v(b)==1) ? 3 : 0`), so its line is read like `.param`.
+ */
+function isBehaviouralSource(line: LogicalLine): boolean {
+  return (line.tokens[0]!.image.charCodeAt(0) | 0x20) === 98 /* b */;
 }
 
 function startsWithLetter(line: LogicalLine): boolean {
@@ -143,6 +151,8 @@ export class StatementBuilder {
       if (!startsWithLetter(line)) {
         this.maker.report('a netlist line starts with an element name (a letter), a dot command, `*` or `+`', this.maker.tokenRange(first));
         result = undefined;
+      } else if (isBehaviouralSource(line)) {
+        result = this.behaviouralSource(line, range);
       } else {
         result = this.element(fields!, range);
       }
@@ -179,6 +189,20 @@ export class StatementBuilder {
     }
     fields.shift(); // the array is ours; shifting spares a copy per line
     return { kind: 'element', name, letter: name.text[0]!.toUpperCase(), fields, range };
+  }
+
+  /** `Bname n+ n- V=expr [tc1=…]`: two nodes, then `key=value` pairs whose values run up to the next `key=`. */
+  private behaviouralSource(line: LogicalLine, range: Range): Statement | undefined {
+    const [nameToken, ...rest] = line.tokens;
+    const name = this.maker.word(nameToken!);
+    const fields: Field[] = [];
+    let at = 0;
+    while (at < rest.length && at < 2 && rest[at]!.tokenType === Word && rest[at + 1]?.tokenType !== Equals) {
+      fields.push(this.maker.wordOrNumber(rest[at]!));
+      at++;
+    }
+    fields.push(...this.paramAssigns(rest, at));
+    return { kind: 'element', name, letter: 'B', fields, range };
   }
 
   private asWord(field: Field | undefined): WordField | undefined {

@@ -248,3 +248,13 @@ describe('ngspice 39 forms with an expression key', () => {
     expect(e1.fields[3]).toMatchObject({ kind: 'assign', keyExpression: { kind: 'expression', expr: { kind: 'call', name: 'v' } } });
   });
 });
+
+describe('behavioural sources', () => {
+  test('V= and I= take an expression with or without braces, up to the next key= (ngspice 39 reads both)', () => {
+    const text = 'title\nB3 b3 0 V=(v(vcc)==5) ? 3 : 0 tc1=0.001\n';
+    const b3 = only(text, 'element');
+    expect(b3.fields.map(shape)).toEqual(['b3', '#0', 'V=expr:(v(vcc)==5) ? 3 : 0', 'tc1=#0.001']);
+    const value = b3.fields[2]!;
+    expect(value.kind === 'assign' && value.value.kind === 'expression' && value.value.expr).toMatchObject({ kind: 'ternary' });
+  });
+});

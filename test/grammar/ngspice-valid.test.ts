@@ -25,6 +25,8 @@ describe('a netlist that ngspice 39 accepts', () => {
     // table is 0.5 V; a summer of 5 V and 10 V with gains of 0.5 is 7.5 V.
     expect(values['v(e2)']).toBeCloseTo(0.5, 9);
     expect(values['v(a2)']).toBeCloseTo(7.5, 9);
+    // An unbraced behavioural expression: (v(vcc)==5) ? 3 : 0 is 3 V at 5 V.
+    expect(values['v(b3)']).toBeCloseTo(3, 9);
   });
 
   test('pnlint reads every line of it without a diagnostic', () => {
