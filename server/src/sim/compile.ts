@@ -89,7 +89,10 @@ function unreadableValue(element: Element): string | undefined {
     case 'H': values.push(['gain', element.gain]); break;
     case 'D':
     case 'Q': values.push(['area', element.area]); break;
-    case 'M': values.push(['W', element.width], ['L', element.length]); break;
+    case 'M':
+      values.push(['W', element.width], ['L', element.length]);
+      if (element.width <= 0 || element.length <= 0) return 'W or L (not positive)';
+      break;
     default: break;
   }
   // An infinite resistance is a legitimate open circuit; NaN anywhere is not.
