@@ -87,7 +87,7 @@ function isSuspect(context: CheckContext, diode: CheckedDiode, partners: Conduct
   const element = diode.element;
   if (diode.kind !== 'led' && !isSeriesDiode(context, element)) return false;
   if (diode.kind !== 'led' && bridgesInductor(context.topology, element)) return false; // a freewheel diode is reverse-biased at DC by design
-  return !hasConductingPartner(partners, diode); // diode-OR or reverse-protection partner
+  return !hasConductingPartner(context, partners, diode); // diode-OR or reverse-protection partner
 }
 
 /**
@@ -153,11 +153,13 @@ function conductingPartners(context: CheckContext): ConductingPartners {
 }
 
 /** Another diode that conducts and shares this one's cathode or anode (diode-OR), or sits anti-parallel to it (reverse protection). */
-function hasConductingPartner(partners: ConductingPartners, diode: CheckedDiode): boolean {
+function hasConductingPartner(context: CheckContext, partners: ConductingPartners, diode: CheckedDiode): boolean {
   const [anode, cathode] = diode.element.nodes as [string, string];
+  const { rails } = context.topology;
   const antiParallel = (partners.byAnode.get(cathode) ?? []).some((other) => other.element.nodes[1] === anode);
-  const sameCathode = (partners.byCathode.get(cathode) ?? []).some((other) => other !== diode && other.element.nodes[0] !== anode);
-  const sameAnode = (partners.byAnode.get(anode) ?? []).some((other) => other !== diode && other.element.nodes[1] !== cathode);
+  // A diode-OR joins at its output, never at ground or a rail, which every branch shares.
+  const sameCathode = !rails.has(cathode) && (partners.byCathode.get(cathode) ?? []).some((other) => other !== diode && other.element.nodes[0] !== anode);
+  const sameAnode = !rails.has(anode) && (partners.byAnode.get(anode) ?? []).some((other) => other !== diode && other.element.nodes[1] !== cathode);
   return antiParallel || sameCathode || sameAnode;
 }
 
