@@ -76,7 +76,7 @@ function createDevice(element: Element): Device | undefined {
   }
 }
 
-/** The name of a value of the element that is not a finite number (NaN from a failed expression), if any. */
+/** Why a value of the element cannot be simulated (NaN from a failed expression, a MOSFET without a channel), if so. */
 function unreadableValue(element: Element): string | undefined {
   const values: [string, number][] = [];
   switch (element.type) {
@@ -91,13 +91,13 @@ function unreadableValue(element: Element): string | undefined {
     case 'Q': values.push(['area', element.area]); break;
     case 'M':
       values.push(['W', element.width], ['L', element.length]);
-      if (element.width <= 0 || element.length <= 0) return 'W or L (not positive)';
+      if (element.width <= 0 || element.length <= 0) return 'its W or L is not positive';
       break;
     default: break;
   }
   // An infinite resistance is a legitimate open circuit; NaN anywhere is not.
   const bad = values.find(([name, value]) => Number.isNaN(value) || (name !== 'resistance' && !Number.isFinite(value)));
-  return bad?.[0];
+  return bad ? `its ${bad[0]} is not a finite number` : undefined;
 }
 
 /** How many nodes each element type needs (the rest of the solver indexes them freely). */
@@ -166,7 +166,7 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
     }
     const unreadable = unreadableValue(element);
     if (unreadable) {
-      leaveOpen(element, `its ${unreadable} is not a finite number`);
+      leaveOpen(element, unreadable);
       continue;
     }
     if (element.type === 'unmodeled') {
