@@ -1,7 +1,7 @@
 // Device equations and corner handling, each against the definition it comes from.
 import { describe, expect, it } from 'vitest';
-import { sourceValueAt } from '../../server/src/sim/index.js';
-import { expectKirchhoff, pointOf } from './helpers.js';
+import { solveCorners, sourceValueAt } from '../../server/src/sim/index.js';
+import { circuitOf, expectKirchhoff, pointOf } from './helpers.js';
 
 const TIGHT = '.options reltol=1e-9 vntol=1e-12 abstol=1e-18';
 
@@ -167,6 +167,19 @@ describe('corners', () => {
     expect(pointOf(text, { name: 'high', sources: { V1: 12 } }).nodes.out).toBeCloseTo(6, 9);
     // R1 at +10 %: 10 · 1000 / 2100
     expect(pointOf(text, { name: 'r1 high', scale: { R1: 1.1 } }).nodes.out).toBeCloseTo(10000 / 2100, 9);
+  });
+
+  it('one compiled circuit, several corners, each with its own numbers (names matched case-insensitively)', () => {
+    const results = solveCorners(circuitOf(text), [
+      { name: 'low', sources: { v1: 9.5 } },
+      { name: 'nominal' },
+      { name: 'high', sources: { V1: 10.5 }, scale: { r2: 2 } },
+    ]);
+    const out = results.map((r) => (r.ok ? r.point.nodes.out : Number.NaN));
+    expect(out[0]).toBeCloseTo(4.75, 9); // Ohm's law
+    expect(out[1]).toBeCloseTo(5, 9);
+    expect(out[2]).toBeCloseTo(7, 9); // 10.5 · 2k / 3k
+    expect(results.map((r) => (r.ok ? r.point.corner : r.corner))).toEqual(['low', 'nominal', 'high']);
   });
 });
 
