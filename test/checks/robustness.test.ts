@@ -47,4 +47,13 @@ describe('robustness', () => {
       { numRuns: 60, seed: 4242 },
     );
   });
+  it('gives clear directive diagnostics for empty and half-written directives, and nothing for an empty file', () => {
+    expect(check('').findings).toEqual([]);
+    const messages = check('x\n*pnlint: rating\n*pnlint:\n*pnlint: ignore\n.end\n').findings.map((finding) => `${finding.rule}: ${finding.message}`);
+    expect(messages).toEqual([
+      expect.stringMatching(/^directive: A rating directive needs a model or instance name/),
+      expect.stringMatching(/^directive: Empty pnlint directive/),
+      expect.stringMatching(/^directive: ignore needs the rule ids/),
+    ]);
+  });
 });
