@@ -5,9 +5,6 @@
 
 import { createToken, Lexer, type CustomPatternMatcherReturn, type TokenType } from 'chevrotain';
 
-const TITLE_MODE = 'title';
-const MAIN_MODE = 'main';
-
 function isLineBreak(code: number): boolean {
   return code === 10 || code === 13;
 }
@@ -81,14 +78,7 @@ function delimitedExpression(text: string, offset: number, open: number, close: 
   return matched(text, offset, index);
 }
 
-export const Title = createToken({ name: 'Title', pattern: /[\x00-\x09\x0b\x0c\x0e-\uffff]+/ });
 export const Newline = createToken({ name: 'Newline', pattern: /\r\n|\r|\n/, line_breaks: true });
-export const TitleNewline = createToken({
-  name: 'TitleNewline',
-  pattern: /\r\n|\r|\n/,
-  line_breaks: true,
-  push_mode: MAIN_MODE,
-});
 
 /** `.control` … `.endc`: an opaque script. Matched whole, so that nothing inside is read as circuit. */
 export const ControlBlock = createToken({
@@ -224,15 +214,6 @@ export const tokenTypes: TokenType[] = [
   Word,
 ];
 
-export const netlistLexer = new Lexer(
-  {
-    modes: {
-      [TITLE_MODE]: [Title, TitleNewline],
-      [MAIN_MODE]: tokenTypes,
-    },
-    defaultMode: MAIN_MODE,
-  },
-  { positionTracking: 'onlyOffset', ensureOptimizations: true, skipValidations: false },
-);
-
-export { TITLE_MODE, MAIN_MODE };
+// One mode: the title line of a top-level file is cut off before lexing (see parser.ts),
+// which spares the lexer its per-token mode handling.
+export const netlistLexer = new Lexer(tokenTypes, { positionTracking: 'onlyOffset', ensureOptimizations: true, skipValidations: false });

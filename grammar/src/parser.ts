@@ -17,12 +17,8 @@ import {
   ControlBlock,
   EndAndRest,
   InlineComment,
-  MAIN_MODE,
   netlistLexer,
   Newline,
-  Title,
-  TITLE_MODE,
-  TitleNewline,
   Word,
   LeftParen,
   RightParen,
@@ -70,11 +66,16 @@ function parseUnguarded(text: string, options: ParseOptions): ParseResult {
   const results: LineResult[] = [];
   const controlBlocks = findControlBlocks(text);
   let start = 0;
+  if (!options.isInclude) {
+    start = titleLineEnd(text);
+    // A byte-order mark is not part of the title.
+    const bom = text.charCodeAt(0) === 0xfeff ? 1 : 0;
+    if (start > bom) results.push({ kind: 'title', text: text.slice(bom, start), range: index.range(bom, start) });
+  }
   let ended = false;
   while (start < text.length && !ended) {
     const end = chunkEnd(text, start, CHUNK_SIZE, controlBlocks);
-    const mode = start === 0 && !options.isInclude ? TITLE_MODE : MAIN_MODE;
-    const tokens = netlistLexer.tokenize(start === 0 && end === text.length ? text : text.slice(start, end), mode).tokens;
+    const tokens = netlistLexer.tokenize(start === 0 && end === text.length ? text : text.slice(start, end)).tokens;
     if (start > 0) for (const token of tokens) token.startOffset += start;
     const last = tokens[tokens.length - 1];
     ended = last !== undefined && last.tokenType === EndAndRest;
@@ -109,6 +110,12 @@ function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilde
       results.push(builder.build(item, reading.fields, reading.problem));
     }
   }
+}
+
+/** Where the first line ends: the title, whatever it holds, is not lexed. */
+function titleLineEnd(text: string): number {
+  const found = /[\r\n]/.exec(text);
+  return found ? found.index : text.length;
 }
 
 const LINE_BREAK = /\r\n?|\n/g;
@@ -185,7 +192,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
 
   for (const token of tokens) {
     const type = token.tokenType;
-    if (type === Newline || type === TitleNewline) {
+    if (type === Newline) {
       afterBreak = true;
       continue;
     }
@@ -223,13 +230,6 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
       finish();
     }
     if (skipping) continue;
-    if (type === Title) {
-      // A byte-order mark is not part of the title.
-      const bom = token.image.charCodeAt(0) === 0xfeff ? 1 : 0;
-      const range = maker.index.range(token.startOffset + bom, token.startOffset + token.image.length);
-      items.push({ kind: 'title', text: token.image.slice(bom), range });
-      continue;
-    }
     if (type === ControlBlock) {
       items.push(controlStatement(token, maker, diagnostics));
       continue;
