@@ -5,7 +5,7 @@ import { parse, type ParseResult } from '@pnlint/grammar';
 import type { Circuit, FileReader, NetlistDiagnostic } from './netlist/circuit.js';
 import { elaborate } from './netlist/index.js';
 import { checkCircuit, type CheckResult } from './checks/index.js';
-import { readWorkspaceConfig, type WorkspaceConfig } from './config.js';
+import { effectiveSettings, readWorkspaceConfig, type WorkspaceConfig } from './config.js';
 import { attachVerifiedFixes } from './fixes/index.js';
 import type { Finding } from './findings.js';
 import type { CancellationToken } from './sim/types.js';
@@ -87,7 +87,8 @@ export function analyze(input: AnalysisInput): Analysis {
     circuit,
     check,
     config,
-    findings: findings.map((finding) => withSeverityOverride(finding, settings)).filter((f): f is Finding => f !== undefined),
+    // The folder's pnlint.json may set severities too: the same merge the checks use.
+    findings: findings.map((finding) => withSeverityOverride(finding, effectiveSettings(settings, config))).filter((f): f is Finding => f !== undefined),
     filesRead,
     complete,
     milliseconds: performance.now() - started,
