@@ -79,6 +79,8 @@ export function analyze(input: AnalysisInput): Analysis {
     complete = !input.cancellation?.isCancellationRequested;
   }
 
+  // The folder's pnlint.json may set severities too: the same merge the checks use.
+  const merged = effectiveSettings(settings, config);
   const filesRead = [...circuit.files.keys()];
   if (input.config) filesRead.push(input.config.uri);
   return {
@@ -87,8 +89,7 @@ export function analyze(input: AnalysisInput): Analysis {
     circuit,
     check,
     config,
-    // The folder's pnlint.json may set severities too: the same merge the checks use.
-    findings: findings.map((finding) => withSeverityOverride(finding, effectiveSettings(settings, config))).filter((f): f is Finding => f !== undefined),
+    findings: findings.map((finding) => withSeverityOverride(finding, merged)).filter((f): f is Finding => f !== undefined),
     filesRead,
     complete,
     milliseconds: performance.now() - started,
