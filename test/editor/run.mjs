@@ -44,6 +44,9 @@ const artifacts = join(repositoryRoot, 'test/artifacts/editor');
 const fixtures = join(repositoryRoot, 'test/editor/fixtures');
 let codeServer;
 let browser;
+let runFolder;
+/** Removed only after code-server has ended, since it writes there until then. */
+let removeRunFolder = false;
 
 process.on('exit', () => endProcessGroupNow(codeServer?.processGroup));
 for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP']) {
@@ -115,7 +118,7 @@ async function main() {
   await checkGrammar();
 
   removeOldRuns(join(cacheFolder, 'runs'));
-  const runFolder = join(cacheFolder, 'runs', new Date().toISOString().replace(/[:.]/g, '-'));
+  runFolder = join(cacheFolder, 'runs', new Date().toISOString().replace(/[:.]/g, '-'));
   mkdirSync(runFolder, { recursive: true });
   rmSync(artifacts, { recursive: true, force: true });
   mkdirSync(artifacts, { recursive: true });
@@ -185,8 +188,8 @@ async function main() {
   const passed = suite.exitCode === 0 && ui.failures.length === 0;
   for (const failure of ui.failures) log(`FAILED: workbench: ${failure}`);
   log(`extension-host suite: ${suite.exitCode === 0 ? 'passed' : `FAILED (exit ${suite.exitCode})`}; workbench steps: ${ui.passed.length} passed, ${ui.failures.length} failed; ${pendingSteps.length} pending; ${seconds} s`);
-  if (!options.has('--keep') && passed) rmSync(runFolder, { recursive: true, force: true });
-  else log(`run folder kept: ${runFolder}`);
+  removeRunFolder = !options.has('--keep') && passed;
+  if (!removeRunFolder) log(`run folder kept: ${runFolder}`);
   return passed ? 0 : 1;
 }
 
@@ -199,6 +202,7 @@ try {
 } finally {
   await browser?.close().catch(() => {});
   await endProcessGroup(codeServer?.processGroup);
+  if (removeRunFolder && runFolder) rmSync(runFolder, { recursive: true, force: true });
   clearTimeout(overallTimer);
 }
 process.exit(exitCode);

@@ -141,6 +141,8 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
       if (/resistor/i.test(chosen)) {
         // The LED no longer sits straight across the rail: a resistor line appears, and D1's line changed.
         await waitUntil(async () => /^\s*R\S*\s/im.test(await editorText(page)), 'a resistor line in the editor');
+        const lines = (await editorText(page)).split('\n');
+        if (lines.some((line) => line.startsWith(ledLineText))) throw new Error(`the LED still sits on its old nodes:\n${lines.join('\n')}`);
       } else {
         // product.md: `*pnlint: ignore <rule>` on the line before the element.
         await waitUntil(async () => new RegExp(`\\*pnlint: ignore ${LED_RULE}`).test(await editorText(page)), 'the ignore directive in the editor');
