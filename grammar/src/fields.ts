@@ -123,7 +123,8 @@ class FieldParser extends EmbeddedActionsParser {
   private listRest: Field[] | undefined;
 
   constructor() {
-    super(tokenTypes, { recoveryEnabled: false, maxLookahead: 3, skipValidations: false });
+    // LL(1): every decision is made on the next token (the list GATE looks further by hand).
+    super(tokenTypes, { recoveryEnabled: false, maxLookahead: 1, skipValidations: false });
     this.performSelfAnalysis();
   }
 
