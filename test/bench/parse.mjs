@@ -2,6 +2,7 @@
 // this imports the compiled grammar, as the language server and the CLI do.
 // Usage: node test/bench/parse.mjs [megabytes]
 import { parse } from '../../grammar/dist/index.js';
+import { netlistLexer } from '../../grammar/dist/lexer.js';
 
 const targetMegabytes = Number(process.argv[2] ?? 10);
 
@@ -55,3 +56,12 @@ console.log(`parse-10MB: ${milliseconds.toFixed(0)} ms, ${throughput.toFixed(1)}
 // On a shared machine wall time includes waiting for a core; CPU time (all threads,
 // garbage collection included) shows the parser's own cost.
 console.log(`cpu: ${cpuMilliseconds.toFixed(0)} ms, ${(megabytes / (cpuMilliseconds / 1000)).toFixed(1)} MB/s of CPU time`);
+
+// The lexer alone, in the parser's 64 kB chunks: how much of the time is tokenising.
+const lexCpuBefore = process.cpuUsage();
+const lexStarted = performance.now();
+for (let start = 0; start < text.length; start += 65536) netlistLexer.tokenize(text.slice(start, start + 65536));
+const lexMilliseconds = performance.now() - lexStarted;
+const lexCpu = process.cpuUsage(lexCpuBefore);
+const lexCpuMilliseconds = (lexCpu.user + lexCpu.system) / 1000;
+console.log(`lexer alone: ${lexMilliseconds.toFixed(0)} ms (${(megabytes / (lexMilliseconds / 1000)).toFixed(1)} MB/s), cpu ${lexCpuMilliseconds.toFixed(0)} ms`);
