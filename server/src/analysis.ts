@@ -3,7 +3,7 @@
 // Pure: every file is reached through the injected FileReader.
 import { parse, type ParseResult } from '@pnlint/grammar';
 import type { Circuit, FileReader, NetlistDiagnostic } from './netlist/circuit.js';
-import { elaborate } from './netlist/index.js';
+import { elaborate, type ElaborateOptions } from './netlist/index.js';
 import { checkCircuit, type CheckResult } from './checks/index.js';
 import { effectiveSettings, readWorkspaceConfig, type WorkspaceConfig } from './config.js';
 import { attachVerifiedFixes } from './fixes/index.js';
@@ -49,38 +49,23 @@ const CODES_REPORTED_BY_CHECKS: ReadonlySet<string> = new Set(['unknown-model', 
 export function analyze(input: AnalysisInput): Analysis {
   const started = performance.now();
   const settings = input.settings ?? DEFAULT_SETTINGS;
-  const findings: Finding[] = [];
+  const read = input.config ? readWorkspaceConfig(input.config.uri, input.config.text) : undefined;
+  const config = read?.config;
 
-  let config: WorkspaceConfig | undefined;
-  if (input.config) {
-    const read = readWorkspaceConfig(input.config.uri, input.config.text);
-    config = read.config;
-    findings.push(...read.findings);
-  }
-
-  const elaborateOptions: { restricted?: boolean; workspaceRoot?: string } = {};
-  if (input.restricted) elaborateOptions.restricted = true;
-  if (input.workspaceRoot !== undefined) elaborateOptions.workspaceRoot = input.workspaceRoot;
-  const circuit = elaborate(input.uri, input.text, input.files, elaborateOptions);
+  const circuit = elaborate(input.uri, input.text, input.files, elaborationOptions(input));
   const syntax = parse(input.text);
-  findings.push(...circuit.diagnostics.filter((d) => !CODES_REPORTED_BY_CHECKS.has(d.code)).map(fromNetlistDiagnostic));
 
   let check: CheckResult | undefined;
   let complete = true;
+  let checked: Finding[] = [];
   if (input.cancellation?.isCancellationRequested) complete = false;
   else {
-    const options = input.cancellation ? { cancellation: input.cancellation } : {};
-    check = checkCircuit(circuit, settings, config, options);
+    check = checkCircuit(circuit, settings, config, input.cancellation ? { cancellation: input.cancellation } : {});
     // Fixes are built after the check, each verified by its own re-check (server/src/fixes).
-    const checked = input.withoutFixes
-      ? check.findings
-      : attachVerifiedFixes(check, circuit, input.files, settings, config, { ...options, elaborate: elaborateOptions }).findings;
-    findings.push(...checked);
+    checked = input.withoutFixes ? check.findings : verifiedFixes(input, circuit, check, config);
     complete = !input.cancellation?.isCancellationRequested;
   }
 
-  // The folder's pnlint.json may set severities too: the same merge the checks use.
-  const merged = effectiveSettings(settings, config);
   const filesRead = [...circuit.files.keys()];
   if (input.config) filesRead.push(input.config.uri);
   return {
@@ -89,11 +74,50 @@ export function analyze(input: AnalysisInput): Analysis {
     circuit,
     check,
     config,
-    findings: findings.map((finding) => withSeverityOverride(finding, merged)).filter((f): f is Finding => f !== undefined),
+    findings: visibleFindings(input, read?.findings ?? [], circuit, checked, config),
     filesRead,
     complete,
     milliseconds: performance.now() - started,
   };
+}
+
+/**
+ * The second half of an analysis made `withoutFixes`: the same findings in the same order,
+ * now with their verified fixes (and any note a fix search adds to a message), for callers
+ * that show the findings first and the fixes when they are ready (the language server).
+ * `input` is the one the analysis was made from; its cancellation stops the fixes too.
+ */
+export function withVerifiedFixes(analysis: Analysis, input: AnalysisInput): Analysis {
+  if (!analysis.complete || !analysis.check || !analysis.circuit) return analysis;
+  const started = performance.now();
+  const checked = verifiedFixes(input, analysis.circuit, analysis.check, analysis.config);
+  const configFindings = input.config ? readWorkspaceConfig(input.config.uri, input.config.text).findings : [];
+  return {
+    ...analysis,
+    findings: visibleFindings(input, configFindings, analysis.circuit, checked, analysis.config),
+    complete: !input.cancellation?.isCancellationRequested,
+    milliseconds: analysis.milliseconds + performance.now() - started,
+  };
+}
+
+function elaborationOptions(input: AnalysisInput): ElaborateOptions {
+  const options: ElaborateOptions = {};
+  if (input.restricted) options.restricted = true;
+  if (input.workspaceRoot !== undefined) options.workspaceRoot = input.workspaceRoot;
+  return options;
+}
+
+function verifiedFixes(input: AnalysisInput, circuit: Circuit, check: CheckResult, config: WorkspaceConfig | undefined): Finding[] {
+  const options = input.cancellation ? { cancellation: input.cancellation } : {};
+  return attachVerifiedFixes(check, circuit, input.files, input.settings ?? DEFAULT_SETTINGS, config, { ...options, elaborate: elaborationOptions(input) }).findings;
+}
+
+/** What the user sees, in this order: the pnlint.json's findings, the netlist's, the checks'; severities as set. */
+function visibleFindings(input: AnalysisInput, configFindings: Finding[], circuit: Circuit, checked: Finding[], config: WorkspaceConfig | undefined): Finding[] {
+  const netlistFindings = circuit.diagnostics.filter((d) => !CODES_REPORTED_BY_CHECKS.has(d.code)).map(fromNetlistDiagnostic);
+  // The folder's pnlint.json may set severities too: the same merge the checks use.
+  const merged = effectiveSettings(input.settings ?? DEFAULT_SETTINGS, config);
+  return [...configFindings, ...netlistFindings, ...checked].map((finding) => withSeverityOverride(finding, merged)).filter((f): f is Finding => f !== undefined);
 }
 
 function fromNetlistDiagnostic(diagnostic: NetlistDiagnostic): Finding {
