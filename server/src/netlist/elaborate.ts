@@ -44,6 +44,14 @@ export const MAXIMUM_INCLUDE_DEPTH = 64;
 /** Elaboration stops at this many elements, so that a netlist whose subcircuits multiply out cannot exhaust memory. */
 export const MAXIMUM_ELEMENTS = 2_000_000;
 
+/** The range of a context not yet at any line (replaced before it is read). */
+const NO_RANGE: Range = { start: { line: 0, column: 0, offset: 0 }, end: { line: 0, column: 0, offset: 0 } };
+
+/** Appends `items` to `list` one by one: a spread push overflows the call stack on a file of some hundred thousand lines. */
+function appendAll<T>(list: T[], items: readonly T[]): void {
+  for (const item of items) list.push(item);
+}
+
 /** Ground's other name (any case). */
 const GROUND_ALIAS = 'gnd';
 const DIRECTIVE = /^\s*pnlint:/i;
@@ -74,8 +82,10 @@ interface Frame {
   instances: SourceLocation[];
   /** The subcircuits being expanded, outermost first, with the instance names: recursion is found here. */
   active: { definition: SubcktStatement; instance: string }[];
-  /** Element names (lower-cased) in this scope → where the first one is. */
-  elementNames: Map<string, SourceLocation>;
+  /** Element names (lower-cased) in this scope → the first line of that name. */
+  elementNames: Map<string, Located>;
+  /** What the element readers see of this scope; made on its first element line (see `elementContext`). */
+  elementContext?: ElementContext;
 }
 
 /**
@@ -101,6 +111,8 @@ class Elaborator {
   private readonly options: Record<string, number> = {};
   private times: TransientTimes = TIMES_WITHOUT_TRANSIENT;
   private budgetReported = false;
+  /** Indices in `elements` of the F, H, W and K elements, which name other elements (see resolveReferences). */
+  private readonly referencing: number[] = [];
   private readonly evaluation: ParameterEvaluation;
 
   constructor(
@@ -240,7 +252,7 @@ class Elaborator {
             break;
           }
           this.includeStack.push(target);
-          out.push(...this.expand(syntax.statements, target));
+          appendAll(out, this.expand(syntax.statements, target));
           this.includeStack.pop();
           break;
         }
@@ -266,7 +278,7 @@ class Elaborator {
             break;
           }
           this.includeStack.push(key);
-          out.push(...this.expand(found.body, target));
+          appendAll(out, this.expand(found.body, target));
           this.includeStack.pop();
           break;
         }
@@ -288,8 +300,10 @@ class Elaborator {
   /** Defines the scope's `.param`s and `.func`s, decides its `.if` blocks, and returns the statements that remain. */
   private prepare(located: Located[], frame: Frame): Located[] {
     const defined: string[] = [];
+    let hasIf = false;
     for (const { statement, uri } of located) {
-      if (statement.kind === 'param') {
+      if (statement.kind === 'if') hasIf = true;
+      else if (statement.kind === 'param') {
         for (const assign of statement.assigns) {
           frame.params.define(assign.key.text, assign.value, uri, assign.range);
           defined.push(assign.key.text.toLowerCase());
@@ -304,14 +318,17 @@ class Elaborator {
         });
       }
     }
-    const out: Located[] = [];
-    for (const item of located) {
-      if (item.statement.kind !== 'if') {
-        out.push(item);
-        continue;
+    let out = located;
+    if (hasIf) {
+      out = [];
+      for (const item of located) {
+        if (item.statement.kind !== 'if') {
+          out.push(item);
+          continue;
+        }
+        const taken = this.takenBranch(item.statement, item.uri, frame);
+        if (taken) appendAll(out, this.prepare(this.expand(taken, item.uri), frame));
       }
-      const taken = this.takenBranch(item.statement, item.uri, frame);
-      if (taken) out.push(...this.prepare(this.expand(taken, item.uri), frame));
     }
     // Evaluate every parameter now, in the order written, so that each problem is reported where it was written.
     for (const name of defined) frame.params.parameter(name);
@@ -409,8 +426,8 @@ class Elaborator {
 
   // ---------------------------------------------------------- nodes
 
-  private canonicalNode(name: string): string {
-    const key = name.toLowerCase();
+  /** `key` is `name` lower-cased, when the caller has it already. */
+  private canonicalNode(name: string, key = name.toLowerCase()): string {
     const existing = this.nodeNames.get(key);
     if (existing !== undefined) return existing;
     this.nodeNames.set(key, name);
@@ -421,17 +438,18 @@ class Elaborator {
   private node(frame: Frame, name: string): string {
     const key = name.toLowerCase();
     if (key === GROUND || key === GROUND_ALIAS) return GROUND;
-    if (this.globals.has(key)) return this.canonicalNode(name);
+    if (this.globals.has(key)) return this.canonicalNode(name, key);
     const port = frame.ports.get(key);
     if (port !== undefined) return port;
-    return this.canonicalNode(frame.prefix + name);
+    return frame.prefix === '' ? this.canonicalNode(name, key) : this.canonicalNode(frame.prefix + name);
   }
 
   // ------------------------------------------------------- elements
 
   private walk(located: Located[], frame: Frame): void {
     let pending: DirectiveComment[] = [];
-    for (const { statement, uri } of located) {
+    for (const item of located) {
+      const { statement, uri } = item;
       if (statement.kind === 'comment') {
         const match = DIRECTIVE.exec(statement.text);
         if (match) {
@@ -465,11 +483,13 @@ class Elaborator {
           });
         }
       }
-      if (statement.kind === 'element') this.element(statement, uri, frame);
+      if (statement.kind === 'element') this.element(statement, item, frame);
     }
   }
 
-  private element(statement: ElementStatement, uri: string, frame: Frame): void {
+  /** `line` is the element line with its file: kept as the first of its name, to point at if the name comes again. */
+  private element(statement: ElementStatement, line: Located, frame: Frame): void {
+    const uri = line.uri;
     if (this.elements.length >= MAXIMUM_ELEMENTS) {
       if (!this.budgetReported) {
         this.budgetReported = true;
@@ -480,37 +500,57 @@ class Elaborator {
     const key = statement.name.text.toLowerCase();
     const first = frame.elementNames.get(key);
     if (first) {
+      const firstName = (first.statement as ElementStatement).name;
       this.sink.error(
         uri,
         statement.name.range,
         `duplicate element name ${statement.name.text}${frame.prefix ? ` in subcircuit instance ${frame.prefix.slice(0, -1)}` : ''}: SPICE engines reject it; this line is not read`,
-        { related: [{ location: first, message: 'the first element of that name' }] },
+        { related: [{ location: { uri: first.uri, range: firstName.range }, message: 'the first element of that name' }] },
       );
       return;
     }
-    const location: SourceLocation = { uri, range: statement.range };
-    frame.elementNames.set(key, { uri, range: statement.name.range });
+    frame.elementNames.set(key, line);
     if (statement.letter === 'X') {
       this.instantiate(statement, uri, frame);
       return;
     }
+    const context = this.elementContext(frame);
+    context.name = frame.prefix + statement.name.text;
+    context.location = { uri, range: statement.range };
+    context.uri = uri;
+    // A line with a syntax error already has its one diagnostic: read what can be read, quietly.
+    context.sink = statement.incomplete ? new DiagnosticSink() : this.sink;
+    const element = readElement(statement, context);
+    if (element === undefined) return;
+    this.elements.push(element);
+    if (element.type === 'F' || element.type === 'H' || element.type === 'W' || element.type === 'K') this.referencing.push(this.elements.length - 1);
+  }
+
+  /**
+   * One context per scope, its line fields (name, location, uri, sink) set
+   * before each element line is read: a fresh context with its closures for
+   * every line was a measurable share of elaborating a large netlist. Readers
+   * use it only while they read their line.
+   */
+  private elementContext(frame: Frame): ElementContext {
+    if (frame.elementContext) return frame.elementContext;
     const context: ElementContext = {
-      name: frame.prefix + statement.name.text,
+      name: '',
       prefix: frame.prefix,
-      location,
+      location: { uri: this.uri, range: NO_RANGE },
       instances: frame.instances,
-      uri,
-      // A line with a syntax error already has its one diagnostic: read what can be read, quietly.
-      sink: statement.incomplete ? new DiagnosticSink() : this.sink,
+      uri: this.uri,
+      sink: this.sink,
       node: (field: NodeField) => this.node(frame, field.text),
-      value: (field, letter) => frame.params.evaluateField(field, uri, letter),
+      value: (field, letter) => frame.params.evaluateField(field, context.uri, letter),
       model: (name) => this.findModel(frame, name),
       options: this.options,
+      // Circuit settings are all read before the first element line.
       temperature: this.temperature ?? DEFAULT_TEMPERATURE,
       times: this.times,
     };
-    const element = readElement(statement, context);
-    if (element) this.elements.push(element);
+    frame.elementContext = context;
+    return context;
   }
 
   private instantiate(statement: ElementStatement, uri: string, frame: Frame): void {
@@ -595,8 +635,12 @@ class Elaborator {
    * leaves its element unmodeled.
    */
   private resolveReferences(): void {
+    if (this.referencing.length === 0) return;
     const byName = new Map<string, Element>();
-    for (const element of this.elements) if (!byName.has(element.name.toLowerCase())) byName.set(element.name.toLowerCase(), element);
+    for (const element of this.elements) {
+      const key = element.name.toLowerCase();
+      if (!byName.has(key)) byName.set(key, element);
+    }
     const find = (name: string, type: string, prefix: string): Element | undefined => {
       const local = byName.get(name.toLowerCase());
       if (local?.type === type) return local;
@@ -605,12 +649,13 @@ class Elaborator {
       return global?.type === type ? global : undefined;
     };
     const prefixOf = (element: Element) => element.name.slice(0, element.name.length - (element.name.split('.').pop()?.length ?? 0));
-    this.elements.forEach((element, index) => {
+    for (const index of this.referencing) {
+      const element = this.elements[index]!;
       if (element.type === 'F' || element.type === 'H' || element.type === 'W') {
         const source = find(element.controlSource, 'V', prefixOf(element));
         if (source) {
           element.controlSource = source.name;
-          return;
+          continue;
         }
         const written = element.controlSource.slice(prefixOf(element).length);
         this.sink.error(element.location.uri, element.location.range, `${element.name} is controlled by the current of ${written}, which is not a voltage source in this circuit`);
@@ -628,11 +673,11 @@ class Elaborator {
         const missing = element.inductors.filter((_, i) => !inductors[i]).map((n) => n.slice(prefixOf(element).length));
         if (missing.length === 0) {
           element.inductors = inductors.map((l) => l!.name);
-          return;
+          continue;
         }
         this.sink.error(element.location.uri, element.location.range, `${element.name} couples ${missing.join(' and ')}, which ${missing.length === 1 ? 'is not an inductor' : 'are not inductors'} in this circuit`);
       }
-    });
+    }
   }
 
   // ---------------------------------------------------- ambiguous values

@@ -144,28 +144,33 @@ export class ParameterScope implements ExpressionScope {
   }
 }
 
-function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, letter: string, isParameter = false): number | undefined {
+/** What the expression evaluator needs; made only for expressions and names, not for the plain numbers most fields hold. */
+function expressionContext(scope: ParameterScope, uri: string, letter: string): EvaluationContext {
   const evaluation = scope.evaluation;
-  const context: EvaluationContext = {
+  return {
     scope,
     uri,
     sink: evaluation.sink,
     onNumber: (text, range) => evaluation.onNumber(uri, text, range, letter, true),
   };
+}
+
+function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, letter: string, isParameter = false): number | undefined {
+  const evaluation = scope.evaluation;
   switch (field.kind) {
     case 'number':
       evaluation.onNumber(uri, field.text, field.range, letter, isParameter);
       return field.value;
     case 'expression':
       // An expression that does not parse already has its syntax diagnostic.
-      return field.expr ? evaluateExpression(field.expr, context) : undefined;
+      return field.expr ? evaluateExpression(field.expr, expressionContext(scope, uri, letter)) : undefined;
     case 'word': {
       const number = readSpiceNumber(field.text);
       if (number) {
         evaluation.onNumber(uri, field.text, field.range, letter, isParameter);
         return number.value;
       }
-      return evaluateExpression({ kind: 'ident', name: field.text, range: field.range }, context);
+      return evaluateExpression({ kind: 'ident', name: field.text, range: field.range }, expressionContext(scope, uri, letter));
     }
     case 'assign':
     case 'group':
