@@ -4,19 +4,18 @@
 // and run the suite in code-server instead (run.mjs).
 //   PNLINT_VSCODE_VERSION=1.82.0 npm run test:vscode   (default: the latest stable release)
 import { runTests } from '@vscode/test-electron';
-import { cpSync, mkdirSync, rmSync } from 'node:fs';
+import { mkdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
-import { bundleSuite, log, repositoryRoot } from './setup.mjs';
+import { bundleSuite, layOutWorkspace, log, repositoryRoot } from './setup.mjs';
 
 /** A download and a suite run together (common practice, no source). */
 const DOWNLOAD_TIMEOUT_MILLISECONDS = 5 * 60_000;
 
 const runFolder = join(repositoryRoot, '.cache', 'vscode-test', 'run');
 rmSync(runFolder, { recursive: true, force: true });
-const workspace = join(runFolder, 'workspace');
 const suiteFolder = join(runFolder, 'suite');
 mkdirSync(runFolder, { recursive: true });
-cpSync(join(repositoryRoot, 'test/editor/fixtures'), workspace, { recursive: true });
+const workspace = layOutWorkspace(runFolder, 'workspace');
 await bundleSuite(suiteFolder);
 
 let exitCode = 1;

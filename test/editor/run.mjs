@@ -7,7 +7,7 @@
 // the end, on failure too. Exit code 0 only when every check passed.
 //   --update-media  also copy the squiggle, hover and quick-fix pictures to client/media/
 //   --keep          keep the run folder under .cache/editor/runs/ for inspection
-import { copyFileSync, cpSync, existsSync, mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { chromium } from 'playwright-core';
 import {
@@ -21,13 +21,14 @@ import {
   ensureNode24,
   installExtension,
   isolatedEnvironment,
+  layOutWorkspace,
   log,
   packageVsixIfMissing,
   repositoryRoot,
   startCodeServer,
 } from './setup.mjs';
 import { checkGrammar } from './grammar-check.mjs';
-import { driveWorkbench } from './workbench.mjs';
+import { checkRestrictedMode, driveWorkbench } from './workbench.mjs';
 
 /** The whole run, installs included, must end within this (a fresh install takes about 2 minutes). */
 const RUN_BUDGET_MILLISECONDS = 20 * 60_000;
@@ -41,7 +42,6 @@ const EXTENSION_FOLDER_NAME = 'pnlint.pnlint-0.1.0';
 
 const options = new Set(process.argv.slice(2));
 const artifacts = join(repositoryRoot, 'test/artifacts/editor');
-const fixtures = join(repositoryRoot, 'test/editor/fixtures');
 let codeServer;
 let browser;
 let runFolder;
@@ -122,10 +122,9 @@ async function main() {
   mkdirSync(runFolder, { recursive: true });
   rmSync(artifacts, { recursive: true, force: true });
   mkdirSync(artifacts, { recursive: true });
-  const suiteWorkspace = join(runFolder, 'workspace-suite');
-  const uiWorkspace = join(runFolder, 'workspace-ui');
-  cpSync(fixtures, suiteWorkspace, { recursive: true });
-  cpSync(fixtures, uiWorkspace, { recursive: true });
+  const suiteWorkspace = layOutWorkspace(runFolder, 'workspace-suite');
+  const uiWorkspace = layOutWorkspace(runFolder, 'workspace-ui');
+  const untrustedWorkspace = layOutWorkspace(runFolder, 'workspace-untrusted');
   const suiteFolder = join(runFolder, 'suite');
   await bundleSuite(suiteFolder);
 
@@ -167,6 +166,18 @@ async function main() {
     netlist: 'led-without-resistor.cir',
     remoteUri: (path) => remoteUri(codeServer, path),
   });
+
+  log('part 3: an untrusted workspace (Restricted Mode)');
+  await endProcessGroup(codeServer.processGroup);
+  codeServer = await startCodeServer({ runFolder, environment, folder: untrustedWorkspace, trusted: false });
+  const restricted = await checkRestrictedMode(context, codeServer, {
+    workspace: untrustedWorkspace,
+    artifacts,
+    netlist: 'led-with-outside-models.cir',
+    remoteUri: (path) => remoteUri(codeServer, path),
+  });
+  ui.passed.push(...restricted.passed);
+  ui.failures.push(...restricted.failures);
 
   if (options.has('--update-media')) {
     const media = join(repositoryRoot, 'client/media');

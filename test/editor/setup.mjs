@@ -3,7 +3,7 @@
 // code-server process group that is always ended. See
 // ../../../shared/design/editor-testing.md for why each step is the way it is.
 import { execFileSync, spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, openSync, readdirSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
 import { build } from 'esbuild';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
@@ -155,12 +155,17 @@ export function installExtension(runFolder, environment) {
  * calls setsid), so that ending the group also ends the extension host and
  * the file watcher that it forks.
  */
-export async function startCodeServer({ runFolder, environment, folder }) {
-  const userData = join(runFolder, 'ud');
+export async function startCodeServer({ runFolder, environment, folder, trusted = true }) {
+  // An untrusted instance gets its own user data, so that no trust decision carries over.
+  const userData = join(runFolder, trusted ? 'ud' : 'ud-untrusted');
   mkdirSync(join(userData, 'User'), { recursive: true });
-  writeFileSync(join(userData, 'User', 'settings.json'), JSON.stringify(QUIET_USER_SETTINGS, null, 2));
+  const settings = trusted
+    ? QUIET_USER_SETTINGS
+    : // Restricted Mode without the trust prompt: every folder opens untrusted.
+      { ...QUIET_USER_SETTINGS, 'security.workspace.trust.enabled': true, 'security.workspace.trust.startupPrompt': 'never', 'security.workspace.trust.banner': 'never' };
+  writeFileSync(join(userData, 'User', 'settings.json'), JSON.stringify(settings, null, 2));
   // An empty config of its own keeps code-server from writing one with a password into $HOME.
-  const config = join(runFolder, 'config.yaml');
+  const config = join(runFolder, trusted ? 'config.yaml' : 'config-untrusted.yaml');
   writeFileSync(config, '');
   const port = await freePort();
   const args = [
@@ -172,14 +177,13 @@ export async function startCodeServer({ runFolder, environment, folder }) {
     '--extensions-dir', join(runFolder, 'exts'),
     '--disable-telemetry',
     '--disable-update-check',
-    '--disable-workspace-trust',
+    ...(trusted ? ['--disable-workspace-trust'] : []),
     '--disable-getting-started-override',
     '--reconnection-grace-time', '5',
     '--vscode-option', 'enable-smoke-test-driver',
     folder,
   ];
-  const logPath = join(runFolder, 'code-server.log');
-  const { openSync } = await import('node:fs');
+  const logPath = join(runFolder, trusted ? 'code-server.log' : 'code-server-untrusted.log');
   const logFile = openSync(logPath, 'w');
   const child = spawn(node24, args, { env: environment, detached: true, stdio: ['ignore', logFile, logFile] });
   const processGroup = child.pid;
@@ -269,4 +273,16 @@ export async function bundleSuite(outputFolder) {
   });
   // The repository's package.json says "type": "module"; these files are CommonJS.
   writeFileSync(join(outputFolder, 'package.json'), '{ "type": "commonjs" }\n');
+}
+
+/**
+ * Lays out a test workspace: the fixtures as the folder `name` in `runFolder`, and
+ * beside it `outside/`, a folder of shared models that a fixture includes from
+ * outside its workspace (read when trusted, refused in Restricted Mode).
+ */
+export function layOutWorkspace(runFolder, name) {
+  const workspace = join(runFolder, name);
+  cpSync(join(repositoryRoot, 'test/editor/fixtures'), workspace, { recursive: true });
+  cpSync(join(repositoryRoot, 'test/editor/outside'), join(runFolder, 'outside'), { recursive: true });
+  return workspace;
 }

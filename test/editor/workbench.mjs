@@ -28,13 +28,14 @@ function editorLine(page, prefix) {
   return page.locator('.monaco-editor .view-lines .view-line').filter({ hasText: new RegExp(`^${prefix.replace(/\s/g, '\\s')}`) }).first();
 }
 
-export async function driveWorkbench(context, server, { workspace, artifacts, netlist, remoteUri }) {
+/** A page with numbered steps: each passes or fails on its own, with a screenshot on failure. */
+async function openSession(context, artifacts, firstStepNumber) {
   const passed = [];
   const failures = [];
   const pending = [];
   const page = await context.newPage();
   page.setDefaultTimeout(STEP_WAIT_MILLISECONDS);
-  let stepNumber = 0;
+  let stepNumber = firstStepNumber - 1;
   const shoot = async (name, region) => {
     const file = join(artifacts, name);
     try {
@@ -62,16 +63,44 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
       return false;
     }
   };
+  const finish = async () => {
+    await page.close().catch(() => {});
+    return { passed, failures, pending };
+  };
+  return { page, shoot, step, finish, pending };
+}
 
+function workbenchUrl(server, workspace, remoteUri, netlist) {
   const payload = JSON.stringify([['openFile', remoteUri(join(workspace, netlist))]]);
+  return `${server.origin}/?folder=${encodeURIComponent(workspace)}&payload=${encodeURIComponent(payload)}`;
+}
+
+/**
+ * In Restricted Mode the netlist's include from outside the workspace is not read,
+ * and the user is told why (the same netlist is clean in a trusted workspace: see the suite).
+ */
+export async function checkRestrictedMode(context, server, { workspace, artifacts, netlist, remoteUri }) {
+  const { page, step, shoot, finish } = await openSession(context, artifacts, 7);
+  await step('in an untrusted workspace the include from outside it is refused, and says why', async () => {
+    await page.goto(workbenchUrl(server, workspace, remoteUri, netlist), { waitUntil: 'domcontentloaded' });
+    await page.locator('.monaco-workbench').waitFor();
+    await page.locator('.statusbar-item').filter({ hasText: /Restricted Mode/i }).first().waitFor();
+    await editorLine(page, 'D1 ').waitFor();
+    await showProblems(page);
+    await page.locator('.markers-panel .monaco-list-row').filter({ hasText: /untrusted/i }).first().waitFor();
+    await shoot('07-restricted-mode.png');
+  });
+  return finish();
+}
+
+export async function driveWorkbench(context, server, { workspace, artifacts, netlist, remoteUri }) {
+  const { page, step, shoot, finish, pending } = await openSession(context, artifacts, 1);
   const editor = page.locator('.part.editor');
   // The LED's line as the fixture has it (the rendered line also holds inlay hints).
   const ledLineText = readFileSync(join(workspace, netlist), 'utf8').split(/\r?\n/).find((line) => line.startsWith('D1 '));
 
   const opened = await step('open the netlist and see the red squiggle under the LED', async () => {
-    await page.goto(`${server.origin}/?folder=${encodeURIComponent(workspace)}&payload=${encodeURIComponent(payload)}`, {
-      waitUntil: 'domcontentloaded',
-    });
+    await page.goto(workbenchUrl(server, workspace, remoteUri, netlist), { waitUntil: 'domcontentloaded' });
     await page.locator('.monaco-workbench').waitFor();
     await editorLine(page, 'D1 ').waitFor();
     await page.locator('.monaco-editor .squiggly-error').first().waitFor();
@@ -158,11 +187,6 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
     });
   }
   return finish();
-
-  async function finish() {
-    await page.close().catch(() => {});
-    return { passed, failures, pending };
-  }
 }
 
 /** Opens the Problems panel (Ctrl+Shift+M toggles it, so press until it shows). */

@@ -265,6 +265,15 @@ describe('pnlint in a real VS Code', () => {
     assert.deepEqual(loud.map((d) => `${ruleOf(d)}: ${d.message}`), []);
   });
 
+  it('reads an include from outside the workspace when the workspace is trusted', async () => {
+    assert.equal(vscode.workspace.isTrusted, true, 'the suite runs in a trusted workspace');
+    const { document } = await openNetlist('led-with-outside-models.cir');
+    await waitFor('a pnlint/status notification for the netlist with the outside include', () => api.status(document.uri));
+    // The model and the rating come from ../outside/status-led-models.inc: the same clean LED as above.
+    const loud = pnlintDiagnostics(document.uri).filter((d) => d.severity <= vscode.DiagnosticSeverity.Warning);
+    assert.deepEqual(loud.map((d) => `${ruleOf(d)}: ${d.message}`), []);
+  });
+
   it('shows the operating point, matching ngspice', async () => {
     await openNetlist('led-with-resistor.cir');
     await vscode.commands.executeCommand('pnlint.showOperatingPoint');
