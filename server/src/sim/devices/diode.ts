@@ -1,7 +1,8 @@
 // The SPICE level-1 diode (SPICE3 user's manual, Quarles 1989; ngspice 39 manual, diode
 // chapter): Shockley junction with emission coefficient, series resistance on an internal
 // node, reverse breakdown with the knee placed so that the current at −BV equals IBV,
-// saturation-current temperature law with EG and XTI, gmin across the junction.
+// saturation-current temperature law with EG and XTI, gmin across the junction, and ngspice
+// 39's floor under a card's saturation current (MINIMUM_SATURATION_CURRENT).
 // CJO, VJ, M, TT, FC are read and kept for the transient analysis; they do nothing at DC.
 import type { Diode as DiodeElement, NetlistDiagnostic } from '../../netlist/circuit.js';
 import { DEFAULT_TEMPERATURE_CELSIUS, ZERO_CELSIUS_IN_KELVIN } from '../constants.js';
@@ -19,10 +20,20 @@ export const BREAKDOWN_CURRENT_OVER_SATURATION = 10;
  */
 export const OFF_BIAS_THERMAL_VOLTAGES = 3;
 const NO_DIAGNOSTICS: NetlistDiagnostic[] = [];
+/**
+ * The smallest saturation current that ngspice 39 gives a diode model: a card's IS below it
+ * (LED cards reach 1e-30 to 1e-40) is raised to it, before the area and temperature scaling.
+ * Found by experiment with ngspice 39: `showmod` prints IS = 1e-28 for a card with IS=1e-30,
+ * and its operating points follow Shockley with IS = 1e-28 (to 1e-11 V over IS 1e-29…1e-40,
+ * N 1…4, RS 0 and 5 Ω, −40…125 °C); its `.options epsmin` (default 1e-28) moves the floor.
+ * A rule of that engine, not an inaccuracy: its users compare with it, so pnlint follows it.
+ */
+export const MINIMUM_SATURATION_CURRENT = 1e-28;
 /** ngspice's bisection of the breakdown knee stops after this many iterations (ngspice 39 diotemp.c). */
 const BREAKDOWN_KNEE_ITERATIONS = 25;
 
 export interface DiodeParameters {
+  /** IS as the model card writes it; the solver uses effectiveSaturationCurrent of it. */
   saturationCurrent: number;
   emissionCoefficient: number;
   seriesResistance: number;
@@ -62,6 +73,15 @@ export function diodeParameters(element: DiodeElement): DiodeParameters {
     transitTime: modelParameter(model, ['tt'], 0),
     depletionCapacitanceCoefficient: Math.min(0.95, modelParameter(model, ['fc'], 0.5)),
   };
+}
+
+/**
+ * The model's saturation current as the solver uses it: raised to MINIMUM_SATURATION_CURRENT as
+ * ngspice 39 does. A non-positive IS stays as written (an open junction with only gmin across
+ * it: no physical junction has IS ≤ 0; ngspice 39 would raise it to the floor too).
+ */
+export function effectiveSaturationCurrent(modelSaturationCurrent: number): number {
+  return modelSaturationCurrent > 0 ? Math.max(modelSaturationCurrent, MINIMUM_SATURATION_CURRENT) : modelSaturationCurrent;
 }
 
 export class DiodeDevice implements Device {
@@ -135,7 +155,7 @@ export class DiodeDevice implements Device {
     const ratio = this.temperature / nominal;
     // Saturation current's temperature law (SPICE3 user's manual): Is(T) = Is·(T/Tnom)^(XTI/N)·exp((T/Tnom − 1)·EG/(N·Vt)).
     this.saturationCurrent =
-      p.saturationCurrent * area * Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
+      effectiveSaturationCurrent(p.saturationCurrent) * area * Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
     this.criticalVoltage = criticalVoltage(vte, this.saturationCurrent);
     this.seriesConductance = p.seriesResistance > 0 ? area / p.seriesResistance : 0;
     this.forwardKneeCurrent = p.forwardKneeCurrent * area;
