@@ -7,6 +7,8 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { createProtocolConnection, StreamMessageReader, StreamMessageWriter } from 'vscode-languageserver-protocol/node.js';
 
 const SERVER_ENTRY = fileURLToPath(new URL('../../server/dist/lsp/entry.js', import.meta.url));
+/** Extra node flags for the server, to profile it: PNLINT_BENCH_SERVER_FLAGS='--cpu-prof --cpu-prof-dir=/tmp/prof'. */
+const SERVER_FLAGS = (process.env['PNLINT_BENCH_SERVER_FLAGS'] ?? '').split(/\s+/).filter(Boolean);
 const SETTINGS = { debounceMilliseconds: 0 };
 const EDITS_SMALL = 300;
 const EDITS_LARGE = 20;
@@ -27,7 +29,7 @@ function percentile(sorted, fraction) {
 
 async function startServer() {
   const started = performance.now();
-  const child = spawn(process.execPath, [SERVER_ENTRY, '--stdio'], { stdio: 'pipe' });
+  const child = spawn(process.execPath, [...SERVER_FLAGS, SERVER_ENTRY, '--stdio'], { stdio: 'pipe' });
   const connection = createProtocolConnection(new StreamMessageReader(child.stdout), new StreamMessageWriter(child.stdin));
   const waiting = new Map();
   connection.onNotification('textDocument/publishDiagnostics', (params) => {

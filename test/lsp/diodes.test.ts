@@ -72,8 +72,10 @@ describe('diodes in the editor', () => {
       range: unlimited!.range,
       context: { diagnostics: [unlimited] },
     });
-    const ignore = actions.find((a) => a.title.includes('on this line'));
-    const edit = ignore!.edit!.documentChanges![0] as TextDocumentEdit;
+    // One ignore for the element's line (the pipeline's verified one), beside the whole-file one: never two.
+    const lineIgnores = actions.filter((a) => a.title.startsWith('Ignore ') && !a.title.includes('whole file'));
+    expect(lineIgnores.map((a) => a.title)).toEqual(['Ignore led-current-unlimited for D1 (add a pnlint directive above its line)']);
+    const edit = lineIgnores[0]!.edit!.documentChanges![0] as TextDocumentEdit;
     const edited = applyLspEdits(UNLIMITED, edit.edits);
     // product.md: `*pnlint: ignore <rule> -- reason` applies to the next element line.
     expect(edited).toBe('panel lamp\nV1 in 0 DC 5\n  *pnlint: ignore led-current-unlimited -- \n  D1 in 0 DRED\n.model DRED D(IS=1e-20 N=1.9 RS=2)\n.end\n');

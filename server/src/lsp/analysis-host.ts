@@ -1,18 +1,31 @@
 // The analysis side of the runner: the pipeline itself, run in the worker thread (or in
 // the protocol thread when there is no worker). Loaded only where analyses run.
-import { analyze, type Analysis } from '../analysis.js';
+// Two phases per run: the check without fixes, answered at once, then its verified fixes,
+// which give way to any newer run (they are rebuilt after it) and stop on cancellation.
+import { analyze, withVerifiedFixes, type Analysis, type AnalysisInput } from '../analysis.js';
+import type { DiodeReport } from '../checks/index.js';
 import { formatOperatingPointText } from '../cli/op-report.js';
-import { CANCELLED_RESULT, type OpenDocumentText, type RunRequest, type RunResult, type WorkerRequest, type WorkerResponse } from './runner.js';
+import { CANCELLED_RESULT, type FixedFindings, type OpenDocumentText, type RunRequest, type RunResult, type WorkerRequest, type WorkerResponse } from './runner.js';
 import { Workspace, type DocumentSource } from './workspace.js';
 
-/** Runs one analysis where it is called; the worker and the in-thread runner share it. */
-export function runAnalysis(request: RunRequest, cancellation: { readonly isCancellationRequested: boolean }, log: (message: string) => void): { result: RunResult; analysis: Analysis } {
+type Cancellation = { readonly isCancellationRequested: boolean };
+
+/** One analysis without its fixes, and what its second phase needs. */
+export interface PhaseOne {
+  result: RunResult;
+  diodes: DiodeReport[];
+  analysis: Analysis;
+  input: AnalysisInput;
+}
+
+/** Runs the first phase of one analysis where it is called; the worker and the in-thread runner share it. */
+export function runAnalysis(request: RunRequest, cancellation: Cancellation, log: (message: string) => void): PhaseOne {
   const documents = new SnapshotDocuments(request.openDocuments);
   const workspace = new Workspace(documents);
   workspace.setFolders(request.folders);
   workspace.restricted = request.settings.restricted;
   const reader = workspace.createReader(log);
-  const analysis = analyze({
+  const input: AnalysisInput = {
     uri: request.uri,
     text: request.text,
     files: reader,
@@ -22,12 +35,16 @@ export function runAnalysis(request: RunRequest, cancellation: { readonly isCanc
     // The reader refuses too (for every folder of a multi-root workspace); the pipeline says why at the include.
     restricted: request.settings.restricted,
     ...(request.workspaceRoot ? { workspaceRoot: request.workspaceRoot } : {}),
-  });
+    // Fixes cost re-simulations: they are the second phase (buildFixes).
+    withoutFixes: true,
+  };
+  const analysis = analyze(input);
   return {
     analysis,
+    input,
+    diodes: analysis.check?.diodes ?? [],
     result: {
       findings: analysis.findings,
-      diodes: analysis.check?.diodes ?? [],
       filesRead: analysis.filesRead,
       versionsRead: [...reader.versions],
       asked: [...reader.asked],
@@ -35,6 +52,17 @@ export function runAnalysis(request: RunRequest, cancellation: { readonly isCanc
       milliseconds: analysis.milliseconds,
     },
   };
+}
+
+/** The second phase: the first phase's findings with their verified fixes; undefined when it was stopped. */
+export function buildFixes(phaseOne: PhaseOne, cancellation: Cancellation): FixedFindings | undefined {
+  if (!phaseOne.analysis.complete || cancellation.isCancellationRequested) return undefined;
+  const started = performance.now();
+  const fixed = withVerifiedFixes(phaseOne.analysis, { ...phaseOne.input, cancellation });
+  if (!fixed.complete) return undefined;
+  // The same findings in the same order, or none of the fixes: the diagnostics point at them by position.
+  const findings = fixed.findings.length === phaseOne.result.findings.length ? fixed.findings : phaseOne.result.findings;
+  return { findings, milliseconds: performance.now() - started };
 }
 
 /** Open documents as sent to the worker, looked up like the server's TextDocuments. */
@@ -69,11 +97,47 @@ export class LatestAnalyses {
   }
 }
 
-/** The worker thread's side: answers run, report and forget messages, one at a time. */
-export function serveAnalyses(port: { on(event: 'message', listener: (message: WorkerRequest) => void): void; postMessage(message: WorkerResponse): void }): void {
+interface FixJob {
+  id: number;
+  phaseOne: PhaseOne;
+  /** The run's own cancellation (a newer edit of its document). */
+  cancelled: Int32Array;
+}
+
+/**
+ * The worker thread's side: answers run, report and forget messages in the order they came,
+ * one at a time; between them, builds the fixes of finished runs. `waitingRuns` counts runs
+ * posted and not yet taken (shared with the protocol thread): fixes give way while it is not zero.
+ */
+export function serveAnalyses(
+  port: { on(event: 'message', listener: (message: WorkerRequest) => void): void; postMessage(message: WorkerResponse): void },
+  waitingRuns: Int32Array = new Int32Array(1),
+): void {
   const latest = new LatestAnalyses();
   const log = (message: string) => port.postMessage({ type: 'log', message });
-  port.on('message', (message) => {
+  const requests: WorkerRequest[] = [];
+  const fixJobs: FixJob[] = [];
+  let scheduled = false;
+
+  const schedule = () => {
+    if (scheduled) return;
+    scheduled = true;
+    // A turn of the event loop between jobs, so that requests posted meanwhile are queued before the next choice.
+    setImmediate(step);
+  };
+  const step = () => {
+    scheduled = false;
+    const request = requests.shift();
+    if (request) serve(request);
+    else {
+      const job = fixJobs.shift();
+      if (job) fixes(job);
+    }
+    if (requests.length > 0 || fixJobs.length > 0) schedule();
+  };
+
+  const serve = (message: WorkerRequest) => {
+    if (message.type === 'run') Atomics.sub(waitingRuns, 0, 1);
     try {
       switch (message.type) {
         case 'run': {
@@ -84,9 +148,12 @@ export function serveAnalyses(port: { on(event: 'message', listener: (message: W
             port.postMessage({ type: 'result', id: message.id, result: CANCELLED_RESULT });
             return;
           }
-          const { result, analysis } = runAnalysis(message.request, token, log);
-          latest.keep(message.request.uri, analysis);
-          port.postMessage({ type: 'result', id: message.id, result });
+          const phaseOne = runAnalysis(message.request, token, log);
+          latest.keep(message.request.uri, phaseOne.analysis);
+          port.postMessage({ type: 'result', id: message.id, result: phaseOne.result });
+          if (!phaseOne.result.complete) return;
+          port.postMessage({ type: 'diodes', id: message.id, diodes: phaseOne.diodes });
+          fixJobs.push({ id: message.id, phaseOne, cancelled: flag });
           return;
         }
         case 'report':
@@ -97,7 +164,29 @@ export function serveAnalyses(port: { on(event: 'message', listener: (message: W
           return;
       }
     } catch (error) {
-      if (message.type !== 'forget') port.postMessage({ type: 'failed', id: message.id, error: error instanceof Error ? (error.stack ?? error.message) : String(error) });
+      if (message.type !== 'forget') port.postMessage({ type: 'failed', id: message.id, error: describe(error) });
     }
+  };
+
+  const fixes = (job: FixJob) => {
+    const ownCancellation = () => Atomics.load(job.cancelled, 0) === 1;
+    const token = { get isCancellationRequested() { return ownCancellation() || Atomics.load(waitingRuns, 0) > 0; } };
+    try {
+      const fixed = buildFixes(job.phaseOne, token);
+      // Stopped only to let a newer run go first: build them again after it.
+      if (!fixed && !ownCancellation() && Atomics.load(waitingRuns, 0) > 0) fixJobs.unshift(job);
+      else port.postMessage({ type: 'fixes', id: job.id, fixes: fixed });
+    } catch (error) {
+      port.postMessage({ type: 'failed', id: job.id, error: describe(error) });
+    }
+  };
+
+  port.on('message', (message) => {
+    requests.push(message);
+    schedule();
   });
+}
+
+function describe(error: unknown): string {
+  return error instanceof Error ? (error.stack ?? error.message) : String(error);
 }

@@ -1,7 +1,9 @@
 // When and what to check: each open document is analysed after a pause in typing
 // (debounced); a newer edit cancels the older analysis, and a result for a text that
 // is no longer current is never published. A change to a file that an analysis read
-// (an include, a pnlint.json) re-checks the documents that read it.
+// (an include, a pnlint.json) re-checks the documents that read it. The findings are
+// published as soon as they are known; their verified fixes follow (the runner's second
+// phase) and are kept for code actions, which wait for them a little.
 import { CancellationTokenSource, DiagnosticSeverity, type Connection, type Diagnostic, type TextDocuments } from 'vscode-languageserver';
 import type { TextDocument } from 'vscode-languageserver-textdocument';
 import { parse } from '@pnlint/grammar';
@@ -12,7 +14,7 @@ import type { RulePages } from './rule-pages.js';
 import type { ServerSettings } from './settings.js';
 import { uriKey, type Workspace } from './workspace.js';
 import { STATUS_NOTIFICATION, type StatusParams } from './protocol.js';
-import type { AnalysisRunner, RunResult } from './runner.js';
+import type { AnalysisRunner, FixedFindings, Run, RunResult } from './runner.js';
 
 /** The last published check of one document, kept for hover, code actions and the rest. */
 export interface Checked {
@@ -21,8 +23,16 @@ export interface Checked {
   library: boolean;
   /** The document version analysed. */
   version: number;
+  /** Without fixes until `fixesReady`; then the same findings, in the same order, with them. */
   findings: Finding[];
+  /** Empty until the reports arrive, just after the findings (see `diodesSettled`). */
   diodes: DiodeReport[];
+  /** True once the findings carry their verified fixes. */
+  fixesReady: boolean;
+  /** Settles when the fixes are in `findings`, or will not come (a newer edit, a failure). */
+  fixesSettled: Promise<void>;
+  /** Settles when the diode reports are in `diodes`, or will not come. */
+  diodesSettled: Promise<void>;
   settings: ServerSettings;
   /** uri → version of each open document read (undefined: read from disk). */
   versionsRead: Map<string, number | undefined>;
@@ -139,8 +149,9 @@ export class Checker {
     const workspaceRoot = this.workspace.folderUriOf(uri);
     const library = this.isLibrary(uri);
     let analysis: RunResult;
+    let run: Run;
     try {
-      analysis = library ? checkSyntaxOnly(uri, document.getText()) : await this.runner.run(
+      run = library ? syntaxOnlyRun(uri, document.getText()) : this.runner.run(
         {
           uri,
           text: document.getText(),
@@ -152,6 +163,7 @@ export class Checker {
         },
         token,
       );
+      analysis = await run.diagnostics;
     } catch (error) {
       if (token.isCancellationRequested) return;
       this.reportInternalError(uri, version, error);
@@ -172,11 +184,24 @@ export class Checker {
       library,
       version,
       findings: analysis.findings,
-      diodes: analysis.diodes,
+      diodes: [],
+      fixesReady: library,
+      fixesSettled: Promise.resolve(),
+      diodesSettled: Promise.resolve(),
       settings,
       versionsRead: new Map(analysis.versionsRead),
       dependencies,
     };
+    // Still the one shown, for the text it was made from.
+    const isShown = () => !token.isCancellationRequested && this.states.get(uri)?.checked === checked && this.documents.get(uri)?.version === version;
+    checked.diodesSettled = run.diodes.then((diodes) => {
+      if (!diodes || !isShown()) return;
+      checked.diodes = diodes;
+      this.afterPublish(uri);
+    });
+    checked.fixesSettled = run.fixes.then((fixed) => {
+      if (fixed && isShown()) this.takeFixes(checked, fixed);
+    });
     this.state(uri).checked = checked;
     // Open files it includes that were checked as netlists of their own are libraries now.
     if (!library) {
@@ -184,20 +209,31 @@ export class Checker {
         if (other !== uri && state.checked && !state.checked.library && dependencies.has(uriKey(other))) this.schedule(other);
       }
     }
+    this.publish(checked);
+    this.sendStatus(uri, version, analysis.milliseconds);
+  }
 
+  /** The second phase's findings replace the first's; a message that changed (a note on why no fix exists) is published again. */
+  private takeFixes(checked: Checked, fixed: FixedFindings): void {
+    const changed = fixed.findings.some((finding, index) => finding.message !== checked.findings[index]?.message);
+    checked.findings = fixed.findings;
+    checked.fixesReady = true;
+    if (changed) this.publish(checked);
+  }
+
+  /** Publishes a check's diagnostics in every file its findings are in. */
+  private publish(checked: Checked): void {
     const contributions = new Map<string, Diagnostic[]>();
-    analysis.findings.forEach((finding, index) => {
-      const diagnostic = toDiagnostic(finding, settings.core, this.pages, { analyzed: uri, version, index });
+    checked.findings.forEach((finding, index) => {
+      const diagnostic = toDiagnostic(finding, checked.settings.core, this.pages, { analyzed: checked.uri, version: checked.version, index });
       if (!diagnostic) return;
       const target = this.workspace.openDocument(finding.location.uri)?.uri ?? finding.location.uri;
       let list = contributions.get(target);
       if (!list) contributions.set(target, (list = []));
       list.push(diagnostic);
     });
-    if (!contributions.has(uri)) contributions.set(uri, []);
-    this.replaceContributions(uri, contributions, version);
-    this.sendStatus(uri, version, analysis.milliseconds);
-    this.afterPublish(uri);
+    if (!contributions.has(checked.uri)) contributions.set(checked.uri, []);
+    this.replaceContributions(checked.uri, contributions, checked.version);
   }
 
   /** Replaces what the analysis of `analyzed` contributes to each file, and publishes the files that changed. */
@@ -246,7 +282,11 @@ export class Checker {
   }
 }
 
-/** A library's own check: its syntax, read as an included file (no title line). */
+/** A library's own check, done here: its syntax, read as an included file (no title line). */
+function syntaxOnlyRun(uri: string, text: string): Run {
+  return { diagnostics: Promise.resolve(checkSyntaxOnly(uri, text)), diodes: Promise.resolve([]), fixes: Promise.resolve(undefined) };
+}
+
 function checkSyntaxOnly(uri: string, text: string): RunResult {
   const started = performance.now();
   const findings: Finding[] = parse(text, { isInclude: true }).diagnostics.map((diagnostic) => ({
@@ -257,7 +297,7 @@ function checkSyntaxOnly(uri: string, text: string): RunResult {
     related: [],
     fixes: [],
   }));
-  return { findings, diodes: [], filesRead: [uri], versionsRead: [], asked: [], complete: true, milliseconds: performance.now() - started };
+  return { findings, filesRead: [uri], versionsRead: [], asked: [], complete: true, milliseconds: performance.now() - started };
 }
 
 /** Two analyses that include the same file report its findings twice: show each once. */

@@ -1,6 +1,7 @@
-// Code actions: each finding's fixes (already verified by re-simulation in the
-// pipeline) as quick fixes, an ignore directive for each finding, and
-// `source.fixAll.pnlint` applying every preferred fix at once.
+// Code actions: each finding's fixes (verified by re-simulation in the analysis' second
+// phase, which a request waits for a little) as quick fixes, one ignore directive for the
+// finding's line and one for the whole file, and `source.fixAll.pnlint` applying every
+// preferred fix at once.
 import type { TextDocument } from 'vscode-languageserver-textdocument';
 import {
   CodeActionKind,
@@ -13,7 +14,7 @@ import {
 import type { Finding, Fix } from '../findings.js';
 import type { Checked } from './checking.js';
 import type { FeatureContext } from './context.js';
-import { isFindingReference, SOURCE } from './diagnostics.js';
+import { isFindingReference, SOURCE, type FindingReference } from './diagnostics.js';
 import { rangesOverlap, toLspRange } from './positions.js';
 import { forEachStatement } from './syntax.js';
 import { uriKey } from './workspace.js';
@@ -23,42 +24,80 @@ export const FIX_ALL_KIND = `${CodeActionKind.SourceFixAll}.pnlint`;
 /** Rules that a directive cannot silence: a line that does not parse is not checked at all. */
 const UNIGNORABLE_RULES = new Set(['syntax']);
 
+/**
+ * How long a code-action request waits for the fixes still being built (ours: the fixes'
+ * own budget, FIX_BUDGET_MILLISECONDS = 1.5 s in server/src/fixes, and some room for a
+ * loaded machine). After that it answers with what there is.
+ */
+export const FIXES_WAIT_MILLISECONDS = 2_000;
+
+/** An ignore directive's insertion (`*pnlint: ignore <rule>`; not `ignore-file`). */
+const IGNORE_DIRECTIVE = /^[ \t]*\*pnlint:[ \t]*ignore[ \t]/i;
+
+/** A fix whose every edit inserts an ignore directive: the fixes module's own ignore fix. */
+export function isIgnoreFix(fix: Fix): boolean {
+  return fix.edits.length > 0 && fix.edits.every((edit) => IGNORE_DIRECTIVE.test(edit.newText));
+}
+
 export interface CodeActionOptions {
   /** The client accepts `documentChanges` with versions (so that a stale edit is refused). */
   versionedEdits: boolean;
 }
 
-export function codeActions(context: FeatureContext, params: CodeActionParams, options: CodeActionOptions): CodeAction[] {
-  const document = context.documents.get(params.textDocument.uri);
-  if (!document) return [];
+/** Resolves when every check's fixes are in, or after the wait, whichever is first. */
+async function fixesOf(checks: Iterable<Checked>, waitMilliseconds: number): Promise<void> {
+  const waiting = [...new Set(checks)].filter((checked) => !checked.fixesReady).map((checked) => checked.fixesSettled);
+  if (waiting.length === 0) return;
+  let timer: NodeJS.Timeout | undefined;
+  const timeout = new Promise<void>((resolve) => (timer = setTimeout(resolve, waitMilliseconds)));
+  await Promise.race([Promise.all(waiting), timeout]);
+  clearTimeout(timer);
+}
+
+export async function codeActions(context: FeatureContext, params: CodeActionParams, options: CodeActionOptions): Promise<CodeAction[]> {
   const wanted = params.context.only;
   const wants = (kind: string) => !wanted || wanted.some((only) => kind === only || kind.startsWith(`${only}.`));
-  const actions: CodeAction[] = [];
+  const quickFixes = wants(CodeActionKind.QuickFix) ? params.context.diagnostics.filter((d) => d.source === SOURCE && isFindingReference(d.data)) : [];
+  const fixAll = wants(FIX_ALL_KIND);
 
-  if (wants(CodeActionKind.QuickFix)) {
-    for (const diagnostic of params.context.diagnostics) {
-      if (diagnostic.source !== SOURCE || !isFindingReference(diagnostic.data)) continue;
-      const checked = context.checker.latest(diagnostic.data.analyzed);
-      // Edits are placed by the text they were computed from: none from an older text.
-      if (!checked || checked.version !== diagnostic.data.version || !isCurrent(context, checked)) continue;
-      const finding = checked.findings[diagnostic.data.index];
-      if (!finding) continue;
-      for (const fix of finding.fixes) {
-        actions.push({
-          title: fix.title,
-          kind: CodeActionKind.QuickFix,
-          diagnostics: [diagnostic],
-          isPreferred: fix.preferred,
-          edit: workspaceEdit(context, fix.edits.map(toLspEdit), options),
-        });
-      }
-      actions.push(...ignoreActions(context, document, finding, diagnostic, options));
+  // The fixes of the checks these diagnostics came from may still be in the making: wait for them a little.
+  const open = context.documents.get(params.textDocument.uri);
+  const checks: Checked[] = [];
+  for (const diagnostic of quickFixes) {
+    const reference = diagnostic.data as FindingReference;
+    const checked = context.checker.latest(reference.analyzed);
+    if (checked && checked.version === reference.version) checks.push(checked);
+  }
+  const own = open && fixAll ? context.current(open) : undefined;
+  if (own) checks.push(own);
+  await fixesOf(checks, FIXES_WAIT_MILLISECONDS);
+
+  // Read everything again after the wait: the text may have changed meanwhile.
+  const document = context.documents.get(params.textDocument.uri);
+  if (!document) return [];
+  const actions: CodeAction[] = [];
+  for (const diagnostic of quickFixes) {
+    const reference = diagnostic.data as FindingReference;
+    const checked = context.checker.latest(reference.analyzed);
+    // Edits are placed by the text they were computed from: none from an older text.
+    if (!checked || checked.version !== reference.version || !isCurrent(context, checked)) continue;
+    const finding = checked.findings[reference.index];
+    if (!finding) continue;
+    for (const fix of finding.fixes) {
+      actions.push({
+        title: fix.title,
+        kind: CodeActionKind.QuickFix,
+        diagnostics: [diagnostic],
+        isPreferred: fix.preferred,
+        edit: workspaceEdit(context, fix.edits.map(toLspEdit), options),
+      });
     }
+    actions.push(...ignoreActions(context, document, finding, diagnostic, options));
   }
 
-  if (wants(FIX_ALL_KIND)) {
-    const fixAll = fixAllAction(context, document, options);
-    if (fixAll) actions.push(fixAll);
+  if (fixAll) {
+    const action = fixAllAction(context, document, options);
+    if (action) actions.push(action);
   }
   return actions;
 }
@@ -109,7 +148,8 @@ function ignoreActions(context: FeatureContext, document: TextDocument, finding:
   const eol = lineEnding(findingDocument);
   const actions: CodeAction[] = [];
   const isAnalysed = uriKey(findingDocument.uri) === uriKey(document.uri);
-  const elementLine = elementLineAt(context, findingDocument, isAnalysed, finding.location.range.start.line);
+  // The fixes module's ignore fix, when it offered one, is the finding's line ignore: offer one, not two.
+  const elementLine = finding.fixes.some(isIgnoreFix) ? undefined : elementLineAt(context, findingDocument, isAnalysed, finding.location.range.start.line);
   if (elementLine !== undefined) {
     const text = findingDocument.getText({ start: { line: elementLine, character: 0 }, end: { line: elementLine + 1, character: 0 } });
     const indentation = /^[ \t]*/.exec(text)![0];

@@ -8,6 +8,12 @@ import type { Checked, Checker } from './checking.js';
 import { buildIndex, IncludedSyntaxCache, type SyntaxIndex } from './syntax.js';
 import { uriKey, type Workspace } from './workspace.js';
 
+/**
+ * How long a hover or an inlay-hint request waits for the diode reports, which the worker
+ * sends just after the findings (ours: their transfer takes milliseconds, even for thousands of diodes).
+ */
+const DIODES_WAIT_MILLISECONDS = 1_000;
+
 export class FeatureContext {
   private readonly parsed = new Map<string, { version: number; library: boolean; syntax: ParseResult }>();
   readonly includedSyntax = new IncludedSyntaxCache();
@@ -42,6 +48,16 @@ export class FeatureContext {
   current(document: TextDocument): Checked | undefined {
     const checked = this.checker.latest(document.uri);
     return checked && checked.version === document.version ? checked : undefined;
+  }
+
+  /** Resolves when the current check's diode reports are in (or will not come), or after a bounded wait. */
+  async diodesArrived(uri: string): Promise<void> {
+    const document = this.documents.get(uri);
+    const checked = document && this.current(document);
+    if (!checked) return;
+    let timer: NodeJS.Timeout | undefined;
+    await Promise.race([checked.diodesSettled, new Promise<void>((resolve) => (timer = setTimeout(resolve, DIODES_WAIT_MILLISECONDS)))]);
+    clearTimeout(timer);
   }
 
   /**

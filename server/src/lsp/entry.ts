@@ -4,12 +4,13 @@
 // a bundle of this file alone is a complete server).
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { createConnection, ProposedFeatures } from 'vscode-languageserver/node.js';
-import { WORKER_MARKER } from './runner.js';
+import { WAITING_RUNS, WORKER_MARKER } from './runner.js';
 import { startLanguageServer } from './server.js';
 
 if (!isMainThread && parentPort && (workerData as Record<string, unknown> | null)?.[WORKER_MARKER]) {
   const port = parentPort;
-  void import('./analysis-host.js').then((host) => host.serveAnalyses(port));
+  const waitingRuns = (workerData as Record<string, unknown>)[WAITING_RUNS];
+  void import('./analysis-host.js').then((host) => host.serveAnalyses(port, waitingRuns instanceof SharedArrayBuffer ? new Int32Array(waitingRuns) : undefined));
 } else {
   startLanguageServer(createConnection(ProposedFeatures.all), { analysisWorker: new URL(import.meta.url) });
 }

@@ -3,6 +3,10 @@
 // completions, and a newer edit really stops the older analysis (the cancellation
 // flag lives in shared memory, which the pipeline polls between solves). Without a
 // worker (an embedder that gives no worker script) it runs in the protocol thread.
+// Each run answers in three steps: the findings without fixes (published at once), the
+// diode reports (for hover and inlay hints), then the findings with their verified fixes
+// (re-simulations, up to a second or two). A newer edit cancels whichever is running,
+// and a run waiting in the worker's queue goes before any fixes still being built.
 import { Worker } from 'node:worker_threads';
 import { fileURLToPath } from 'node:url';
 import type { CancellationToken } from 'vscode-languageserver';
@@ -29,10 +33,10 @@ export interface RunRequest {
   openDocuments: OpenDocumentText[];
 }
 
-/** What the server keeps of an analysis, as plain data. */
+/** What the server keeps of an analysis, as plain data (its diode reports come separately). */
 export interface RunResult {
+  /** Without their verified fixes (those come with FixedFindings); a netlist diagnostic's own suggestions are here. */
   findings: Finding[];
-  diodes: DiodeReport[];
   filesRead: string[];
   /** uri → version of each open document read (undefined: read from disk). */
   versionsRead: [string, number | undefined][];
@@ -42,10 +46,25 @@ export interface RunResult {
   milliseconds: number;
 }
 
+/** The second phase of a run: the same findings, in the same order, with their verified fixes. */
+export interface FixedFindings {
+  findings: Finding[];
+  milliseconds: number;
+}
+
+/** One run's three answers. The later two settle as undefined when the run was cancelled or failed. */
+export interface Run {
+  /** The findings without their fixes: publish them at once. */
+  diagnostics: Promise<RunResult>;
+  /** The diodes' reports, sent after the diagnostics (they are large: hover and inlay hints read them). */
+  diodes: Promise<DiodeReport[] | undefined>;
+  fixes: Promise<FixedFindings | undefined>;
+}
+
 export interface AnalysisRunner {
   /** Gets ready before the first request (the worker loads the pipeline meanwhile). */
   warmUp(): void;
-  run(request: RunRequest, token: CancellationToken): Promise<RunResult>;
+  run(request: RunRequest, token: CancellationToken): Run;
   /** The `pnlint op` text of the last complete analysis of `uri`. */
   report(uri: string): Promise<string | undefined>;
   forget(uri: string): void;
@@ -61,11 +80,23 @@ export class InlineRunner implements AnalysisRunner {
 
   warmUp(): void {}
 
-  async run(request: RunRequest, token: CancellationToken): Promise<RunResult> {
-    const { host, latest } = await this.host;
-    const { result, analysis } = host.runAnalysis(request, token, this.log);
-    latest.keep(request.uri, analysis);
-    return result;
+  run(request: RunRequest, token: CancellationToken): Run {
+    const phaseOne = this.host.then(({ host, latest }) => {
+      const ran = host.runAnalysis(request, token, this.log);
+      latest.keep(request.uri, ran.analysis);
+      return { host, ran };
+    });
+    // The fixes wait for a turn of the event loop, so that the diagnostics are published first.
+    const fixes = phaseOne.then(({ host, ran }) =>
+      new Promise<FixedFindings | undefined>((resolve) =>
+        setImmediate(() => resolve(token.isCancellationRequested ? undefined : host.buildFixes(ran, token))),
+      ),
+    );
+    return {
+      diagnostics: phaseOne.then(({ ran }) => ran.result),
+      diodes: phaseOne.then(({ ran }) => ran.diodes, () => undefined),
+      fixes: fixes.catch(() => undefined),
+    };
   }
   async report(uri: string): Promise<string | undefined> {
     return (await this.host).latest.report(uri);
@@ -84,15 +115,22 @@ export type WorkerRequest =
   | { type: 'report'; id: number; uri: string }
   | { type: 'forget'; uri: string };
 
-/** Messages from the worker. */
+/** Messages from the worker; a run is answered by a result, then diodes, then fixes. */
 export type WorkerResponse =
   | { type: 'result'; id: number; result: RunResult }
+  | { type: 'diodes'; id: number; diodes: DiodeReport[] }
+  | { type: 'fixes'; id: number; fixes: FixedFindings | undefined }
   | { type: 'report'; id: number; text: string | undefined }
   | { type: 'failed'; id: number; error: string }
   | { type: 'log'; message: string };
 
 /** Marks the worker thread in workerData, so that the entry script knows which part to run. */
 export const WORKER_MARKER = 'pnlintAnalysisWorker';
+/**
+ * In workerData: a shared counter of run requests posted to the worker and not yet taken up.
+ * Fixes being built give way while it is above zero (a new check goes first).
+ */
+export const WAITING_RUNS = 'pnlintWaitingRuns';
 
 /** After a cancellation, how long an analysis may take to notice before its worker is replaced (ours). */
 const CANCELLATION_GRACE_MILLISECONDS = 2_000;
@@ -103,18 +141,33 @@ interface Pending {
   isCancelled(): boolean;
   /** How many workers died while holding it. */
   attempts: number;
-  resolve(value: unknown): void;
-  reject(error: Error): void;
+  /** Called with each answer the worker sends for it (a run gets three). */
+  receive(message: WorkerResponse & { id: number }): void;
+  /** The worker failed it (or died holding it too often): settle everything still open. */
+  fail(error: Error): void;
 }
 
 /** A request whose worker died this many times is failed, not retried: it is probably what kills it. */
 const ATTEMPTS_PER_REQUEST = 2;
 
 /** The result of an analysis that was stopped before it started or finished. */
-export const CANCELLED_RESULT: RunResult = { findings: [], diodes: [], filesRead: [], versionsRead: [], asked: [], complete: false, milliseconds: 0 };
+export const CANCELLED_RESULT: RunResult = { findings: [], filesRead: [], versionsRead: [], asked: [], complete: false, milliseconds: 0 };
+
+/** A promise with its resolve, for answers that arrive as messages. */
+function settleable<T>(): { promise: Promise<T>; resolve: (value: T) => void; reject: (error: Error) => void } {
+  let resolve!: (value: T) => void;
+  let reject!: (error: Error) => void;
+  const promise = new Promise<T>((res, rej) => {
+    resolve = res;
+    reject = rej;
+  });
+  return { promise, resolve, reject };
+}
 
 export class WorkerRunner implements AnalysisRunner {
   private worker: Worker | undefined;
+  /** The current worker's count of runs posted and not yet started (see WAITING_RUNS). */
+  private waitingRuns = new Int32Array(new SharedArrayBuffer(4));
   private nextId = 1;
   private readonly pending = new Map<number, Pending>();
 
@@ -129,7 +182,13 @@ export class WorkerRunner implements AnalysisRunner {
 
   private ensureWorker(): Worker {
     if (this.worker) return this.worker;
-    const worker = new Worker(fileURLToPath(this.script), { workerData: { [WORKER_MARKER]: true }, stdout: true, stderr: true });
+    // A new worker has a queue of its own: count afresh.
+    this.waitingRuns = new Int32Array(new SharedArrayBuffer(4));
+    const worker = new Worker(fileURLToPath(this.script), {
+      workerData: { [WORKER_MARKER]: true, [WAITING_RUNS]: this.waitingRuns.buffer },
+      stdout: true,
+      stderr: true,
+    });
     // The worker's console must never reach stdout: in stdio mode that is the protocol channel.
     worker.stdout.on('data', (chunk: Buffer) => this.log(chunk.toString().trimEnd()));
     worker.stderr.on('data', (chunk: Buffer) => this.log(chunk.toString().trimEnd()));
@@ -148,9 +207,10 @@ export class WorkerRunner implements AnalysisRunner {
     }
     const pending = this.pending.get(message.id);
     if (!pending) return;
-    this.pending.delete(message.id);
-    if (message.type === 'failed') pending.reject(new Error(message.error));
-    else pending.resolve(message.type === 'result' ? message.result : message.text);
+    // A run stays pending until its fixes arrive; everything else has one answer.
+    if (message.type === 'failed' || message.type === 'fixes' || message.type === 'report') this.pending.delete(message.id);
+    if (message.type === 'failed') pending.fail(new Error(message.error));
+    else pending.receive(message);
   }
 
   /**
@@ -165,30 +225,37 @@ export class WorkerRunner implements AnalysisRunner {
       job.attempts += 1;
       if (job.isCancelled()) {
         this.pending.delete(job.message.id);
-        job.resolve(CANCELLED_RESULT);
+        job.receive({ type: 'result', id: job.message.id, result: CANCELLED_RESULT });
+        job.receive({ type: 'fixes', id: job.message.id, fixes: undefined });
       } else if (job.attempts >= ATTEMPTS_PER_REQUEST) {
         this.pending.delete(job.message.id);
-        job.reject(error);
+        job.fail(error);
       }
     }
     const retried = [...this.pending.values()];
     if (retried.length > 0) {
       const replacement = this.ensureWorker();
-      for (const job of retried) replacement.postMessage(job.message);
+      for (const job of retried) this.post(replacement, job.message);
     }
   }
 
-  private send<T>(message: WorkerRequest & { id: number }, isCancelled: () => boolean = () => false): Promise<T> {
-    return new Promise<T>((resolve, reject) => {
-      this.pending.set(message.id, { message, isCancelled, attempts: 0, resolve: resolve as (value: unknown) => void, reject });
-      this.ensureWorker().postMessage(message);
-    });
+  private post(worker: Worker, message: WorkerRequest): void {
+    if (message.type === 'run') Atomics.add(this.waitingRuns, 0, 1);
+    worker.postMessage(message);
   }
 
-  run(request: RunRequest, token: CancellationToken): Promise<RunResult> {
+  private send(pending: Pending): void {
+    this.pending.set(pending.message.id, pending);
+    this.post(this.ensureWorker(), pending.message);
+  }
+
+  run(request: RunRequest, token: CancellationToken): Run {
     const id = this.nextId++;
     const cancelled = new SharedArrayBuffer(4);
     const flag = new Int32Array(cancelled);
+    const diagnostics = settleable<RunResult>();
+    const diodes = settleable<DiodeReport[] | undefined>();
+    const fixes = settleable<FixedFindings | undefined>();
     let watchdog: NodeJS.Timeout | undefined;
     const listener = token.onCancellationRequested(() => {
       Atomics.store(flag, 0, 1);
@@ -203,14 +270,54 @@ export class WorkerRunner implements AnalysisRunner {
       watchdog.unref();
     });
     if (token.isCancellationRequested) Atomics.store(flag, 0, 1);
-    return this.send<RunResult>({ type: 'run', id, request, cancelled }, () => Atomics.load(flag, 0) === 1).finally(() => {
+    const finished = () => {
       listener.dispose();
       if (watchdog) clearTimeout(watchdog);
+    };
+    this.send({
+      message: { type: 'run', id, request, cancelled },
+      isCancelled: () => Atomics.load(flag, 0) === 1,
+      attempts: 0,
+      receive: (message) => {
+        if (message.type === 'result') {
+          diagnostics.resolve(message.result);
+          // An incomplete run sends nothing more.
+          if (!message.result.complete) this.settle(id, diodes, fixes, finished);
+        } else if (message.type === 'diodes') diodes.resolve(message.diodes);
+        else if (message.type === 'fixes') {
+          diodes.resolve(undefined);
+          fixes.resolve(message.fixes);
+          finished();
+        }
+      },
+      fail: (error) => {
+        diagnostics.reject(error);
+        diodes.resolve(undefined);
+        fixes.resolve(undefined);
+        finished();
+      },
     });
+    return { diagnostics: diagnostics.promise, diodes: diodes.promise, fixes: fixes.promise };
+  }
+
+  /** Ends a run early: its later answers settle as undefined. */
+  private settle(id: number, diodes: { resolve(value: undefined): void }, fixes: { resolve(value: undefined): void }, finished: () => void): void {
+    this.pending.delete(id);
+    diodes.resolve(undefined);
+    fixes.resolve(undefined);
+    finished();
   }
 
   report(uri: string): Promise<string | undefined> {
-    return this.send<string | undefined>({ type: 'report', id: this.nextId++, uri });
+    const answer = settleable<string | undefined>();
+    this.send({
+      message: { type: 'report', id: this.nextId++, uri },
+      isCancelled: () => false,
+      attempts: 0,
+      receive: (message) => answer.resolve(message.type === 'report' ? message.text : undefined),
+      fail: (error) => answer.reject(error),
+    });
+    return answer.promise;
   }
 
   forget(uri: string): void {

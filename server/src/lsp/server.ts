@@ -52,6 +52,18 @@ function guarded<P, R>(connection: Connection, name: string, fallback: R, handle
   };
 }
 
+/** The same for a handler that answers later. */
+function guardedAsync<P, R>(connection: Connection, name: string, fallback: R, handler: (params: P) => Promise<R>): (params: P) => Promise<R> {
+  return async (params: P) => {
+    try {
+      return await handler(params);
+    } catch (error) {
+      connection.console.error(`${name} failed: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`);
+      return fallback;
+    }
+  };
+}
+
 export function startLanguageServer(connection: Connection, options: ServerOptions = {}): void {
   const documents = new TextDocuments(TextDocument);
   const workspace = new Workspace(documents);
@@ -154,12 +166,19 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
   });
 
   const versionedEdits = () => capabilities.workspace?.workspaceEdit?.documentChanges === true;
-  connection.onHover(guarded(connection, 'hover', null, (params) => hover(context, params)));
+  // Hover and inlay hints read the diode reports, which arrive just after the diagnostics.
+  connection.onHover(guardedAsync(connection, 'hover', null, async (params) => {
+    await context.diodesArrived(params.textDocument.uri);
+    return hover(context, params);
+  }));
   connection.onDefinition(guarded(connection, 'definition', null, (params) => definition(context, params)));
   connection.onDocumentSymbol(guarded(connection, 'document symbols', [], (params) => documentSymbols(context, params)));
-  connection.languages.inlayHint.on(guarded(connection, 'inlay hints', [], (params) => inlayHints(context, params)));
+  connection.languages.inlayHint.on(guardedAsync(connection, 'inlay hints', [], async (params) => {
+    await context.diodesArrived(params.textDocument.uri);
+    return inlayHints(context, params);
+  }));
   connection.onCompletion(guarded(connection, 'completion', [], (params) => completion(context, params)));
-  connection.onCodeAction(guarded(connection, 'code actions', [], (params) => codeActions(context, params, { versionedEdits: versionedEdits() })));
+  connection.onCodeAction(guardedAsync(connection, 'code actions', [], (params) => codeActions(context, params, { versionedEdits: versionedEdits() })));
   connection.onRequest(OPERATING_POINT_REQUEST, async (params: OperatingPointParams) => {
     try {
       return await operatingPoint(context, runner, params);
