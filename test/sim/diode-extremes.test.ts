@@ -9,12 +9,12 @@
 // `.options epsmin=1e-40` (an ngspice option whose default is 1e-28) it follows the card as
 // written. pnlint applies the same floor (MINIMUM_SATURATION_CURRENT in diode.ts), so that
 // its numbers agree with the engine its users compare against.
-import { describe, expect, test } from 'vitest';
-import { BOLTZMANN, ELEMENTARY_CHARGE, REFERENCE_TEMPERATURE } from '../../server/src/sim/index.js';
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { describe, expect, test } from 'vitest';
+import { BOLTZMANN, ELEMENTARY_CHARGE, REFERENCE_TEMPERATURE } from '../../server/src/sim/index.js';
 import { MINIMUM_SATURATION_CURRENT } from '../../server/src/sim/devices/diode.js';
 import { CURRENT_TOLERANCE, VOLTAGE_TOLERANCE, allowedDifference, compareWithNgspice, describeDisagreement } from '../support/compare.js';
 import { declareNgspiceGate, runNgspiceOperatingPoint } from '../support/ngspice.js';
@@ -61,10 +61,10 @@ function gridNetlist(temperatureCelsius: number): string {
 }
 
 /**
- * Where the floor meets area, a card's own TNOM, and breakdown: area scales after the floor
- * (IS=1e-30 with area 100 behaves as 1e-26; IS=1e-26 with area 1e-4 as 1e-30, not floored),
- * TNOM scales the floored value, and the breakdown knee, placed so that −BV carries IBV, does
- * not depend on IS (seen with ngspice 39).
+ * Where the floor meets area, a card's own TNOM, breakdown and a mistyped IS: area scales
+ * after the floor (IS=1e-30 with area 100 behaves as 1e-26; IS=1e-26 with area 1e-4 as 1e-30,
+ * not floored), TNOM scales the floored value, the breakdown knee, placed so that −BV carries
+ * IBV, does not depend on IS, and a negative IS is raised to the floor (seen with ngspice 39).
  */
 const FLOOR_WITH_AREA_TNOM_AND_BREAKDOWN = `floor with area, tnom and breakdown
 V1 s1 0 12.6
@@ -87,11 +87,16 @@ V5 s5 0 5
 R5 s5 a5 1meg
 D5 k5 a5 DTINYZENERSOFT
 VAM5 k5 0 0
+V6 s6 0 12.6
+R6 s6 a6 30
+D6 a6 k6 DMISTYPED
+VAM6 k6 0 0
 .model DTINY D(IS=1e-30 N=1.9)
 .model DSMALL D(IS=1e-26 N=1.9)
 .model DHOTCARD D(IS=1e-30 N=2.2 TNOM=100)
 .model DTINYZENER D(IS=1e-30 N=1.5 BV=5 IBV=1m)
 .model DTINYZENERSOFT D(IS=1e-32 BV=4.7 IBV=1e-10)
+.model DMISTYPED D(IS=-1e-20 N=2)
 ${TIGHT}
 .end
 `;
@@ -115,7 +120,7 @@ describe.runIf(ngspiceRuns)('diode cards at the extremes against ngspice 39', ()
     });
   }
 
-  test('the floor with area, a card TNOM, and reverse breakdown', () => {
+  test('the floor with area, a card TNOM, reverse breakdown and a negative IS', () => {
     expectAgreement(FLOOR_WITH_AREA_TNOM_AND_BREAKDOWN);
   });
 });

@@ -77,11 +77,11 @@ export function diodeParameters(element: DiodeElement): DiodeParameters {
 
 /**
  * The model's saturation current as the solver uses it: raised to MINIMUM_SATURATION_CURRENT as
- * ngspice 39 does. A non-positive IS stays as written (an open junction with only gmin across
- * it: no physical junction has IS ≤ 0; ngspice 39 would raise it to the floor too).
+ * ngspice 39 does, a negative (mistyped) IS included. IS = 0 alone stays as written, an open
+ * junction with only gmin across it, where ngspice 39 would use the floor too.
  */
 export function effectiveSaturationCurrent(modelSaturationCurrent: number): number {
-  return modelSaturationCurrent > 0 ? Math.max(modelSaturationCurrent, MINIMUM_SATURATION_CURRENT) : modelSaturationCurrent;
+  return modelSaturationCurrent === 0 ? 0 : Math.max(modelSaturationCurrent, MINIMUM_SATURATION_CURRENT);
 }
 
 export class DiodeDevice implements Device {
