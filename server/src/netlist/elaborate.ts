@@ -52,6 +52,9 @@ function appendAll<T>(list: T[], items: readonly T[]): void {
   for (const item of items) list.push(item);
 }
 
+/** Digits with at most one point and no letters: a SPICE engine reads all of it, so it cannot be ambiguous. */
+const PLAIN_DECIMAL = /^[+-]?\d*\.?\d*$/;
+
 /** Ground's other name (any case). */
 const GROUND_ALIAS = 'gnd';
 const DIRECTIVE = /^\s*pnlint:/i;
@@ -84,6 +87,8 @@ interface Frame {
   active: { definition: SubcktStatement; instance: string }[];
   /** Element names (lower-cased) in this scope → the first line of that name. */
   elementNames: Map<string, Located>;
+  /** Inside an instance: local node names (lower-cased) → circuit node, made on the first one. */
+  localNodes?: Map<string, string>;
   /** What the element readers see of this scope; made on its first element line (see `elementContext`). */
   elementContext?: ElementContext;
 }
@@ -441,7 +446,15 @@ class Elaborator {
     if (this.globals.has(key)) return this.canonicalNode(name, key);
     const port = frame.ports.get(key);
     if (port !== undefined) return port;
-    return frame.prefix === '' ? this.canonicalNode(name, key) : this.canonicalNode(frame.prefix + name);
+    if (frame.prefix === '') return this.canonicalNode(name, key);
+    // Inside an instance, remember each local node: `X12.a` is built and looked up once, not once per line.
+    // (Checked after the globals, which a nested subcircuit's `.global` may still extend.)
+    frame.localNodes ??= new Map();
+    const known = frame.localNodes.get(key);
+    if (known !== undefined) return known;
+    const node = this.canonicalNode(frame.prefix + name);
+    frame.localNodes.set(key, node);
+    return node;
   }
 
   // ------------------------------------------------------- elements
@@ -466,7 +479,7 @@ class Elaborator {
         continue;
       }
       const name = statement.kind === 'element' ? frame.prefix + statement.name.text : undefined;
-      if (name !== undefined) {
+      if (name !== undefined && pending.length > 0) {
         for (const directive of pending) directive.nextElement = name;
         pending = [];
       }
@@ -688,6 +701,8 @@ class Elaborator {
    * does not truncate but stops ("Misplaced operator", checked by running it).
    */
   private checkAmbiguous(uri: string, text: string, range: Range, letter: string, inExpression: boolean): void {
+    // Most values are plain decimals (`10`, `0.5`), which SPICE engines read whole: nothing to look at.
+    if (PLAIN_DECIMAL.test(text)) return;
     const reading = readSpiceNumber(text);
     if (!reading || !isAmbiguousNumber(reading)) return;
     const unit = unitOfElement(letter);

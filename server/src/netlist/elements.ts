@@ -56,7 +56,9 @@ const NO_ASSIGNS: ReadonlyMap<string, AssignField> = new Map();
 
 function split(fields: Field[]): SplitFields {
   // Most lines have no `key=value`: their fields are the positional ones, uncopied.
-  if (!fields.some((field) => field.kind === 'assign')) return { positional: fields as PositionalField[], assigns: NO_ASSIGNS };
+  let assignCount = 0;
+  for (const field of fields) if (field.kind === 'assign') assignCount++;
+  if (assignCount === 0) return { positional: fields as PositionalField[], assigns: NO_ASSIGNS };
   const positional: PositionalField[] = [];
   const assigns = new Map<string, AssignField>();
   for (const field of fields) {
