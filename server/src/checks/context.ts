@@ -4,11 +4,12 @@
 import type { Circuit, Diode, Element, SourceLocation, VoltageSource } from '../netlist/circuit.js';
 import type { Finding, Fix } from '../findings.js';
 import type { Settings } from '../settings.js';
-import type { DiodeOperatingPoint, SolveResult } from '../sim/types.js';
+import type { Corner, DiodeOperatingPoint, SolveResult } from '../sim/types.js';
 import type { CornerPlan } from './corners.js';
 import type { FixRequest, TheveninView } from './fix-request.js';
 import type { ValueSource } from './provenance.js';
 import type { DiodeRatings, ResistorRatings } from './ratings.js';
+import { unusedName, type Regions } from './regions.js';
 import type { Topology } from './topology.js';
 import type { DiodeKind } from './vocabulary.js';
 
@@ -46,11 +47,28 @@ export interface CheckContext {
   heldCapacitors: { name: string; voltage: number }[];
   /** Solves a modified copy of the circuit at the given corners (a diode flipped, a probe inserted). */
   solveVariant(variant: Circuit, plans: readonly CornerPlan[]): SolveResult[];
+  /**
+   * Solves the circuit with some elements replaced (diodes flipped, a probe in a diode's place),
+   * at corners of the base plans: `corner` is the full circuit's corner, `plan` the index of the
+   * base plan whose solve holds the rails. Only the regions the replaced elements reach are
+   * solved (regions.ts). Results line up with `corners`; undefined where nothing was solved
+   * (the base corner did not solve, or the counterfactual budget is spent).
+   */
+  solveWithReplacements(replacements: ReadonlyMap<Element, Element>, corners: readonly { plan: number; corner: Corner }[]): (SolveResult | undefined)[];
   /** The rest of the circuit seen from a diode at one corner; undefined when it cannot be worked out. */
   theveninView(diode: CheckedDiode, at: DiodeAtCorner): TheveninView | undefined;
   /** Fixes for a finding, from the fix provider (verified by re-simulation there); records the request. */
   fixesFor(request: FixRequest, finding: Finding): Fix[];
+  /** The first element of that name (exactly as written). */
   elementNamed(name: string): Element | undefined;
+  /** The checked diode of a diode element, if it is one. */
+  diodeOf(element: Element): CheckedDiode | undefined;
+  /** Every resistor with a tolerance above zero (directive, pnlint.json or setting), by name. */
+  resistorTolerances: ReadonlyMap<string, number>;
+  /** The parts of the circuit that cannot see each other across the supply rails; undefined when the circuit does not fall apart. */
+  regions: Regions | undefined;
+  /** The circuit's element names, lower-cased (for names that collide with none). */
+  takenNames: ReadonlySet<string>;
 }
 
 /** The probe step for a Thevenin view: small against a diode's forward voltage, large against solver tolerances (ours). */
@@ -69,11 +87,15 @@ export function freshName(circuit: Circuit, base: string): string {
   return name;
 }
 
-/** The diode replaced by an ideal voltage source across its terminals (anode +), for probing the rest of the circuit. */
-export function probeSource(circuit: Circuit, diode: Diode, voltage: number): VoltageSource {
+/**
+ * The diode replaced by an ideal voltage source across its terminals (anode +), for probing the
+ * rest of the circuit. `taken`: the circuit's lower-cased element names, when already at hand.
+ */
+export function probeSource(circuit: Circuit, diode: Diode, voltage: number, taken?: ReadonlySet<string>): VoltageSource {
+  const base = `Vprobe_${diode.name.replace(/\./g, '_')}`;
   return {
     type: 'V',
-    name: freshName(circuit, `Vprobe_${diode.name.replace(/\./g, '_')}`),
+    name: taken ? unusedName(base, taken) : freshName(circuit, base),
     nodes: [diode.nodes[0]!, diode.nodes[1]!],
     dc: voltage,
     waveform: undefined,

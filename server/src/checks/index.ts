@@ -1,14 +1,14 @@
 // The diode checks: from an elaborated circuit to findings, with each diode's kind,
 // ratings and operating point at every corner. Pure; the solver is the project's own.
-import type { Circuit, Diode, NetlistDiagnostic, SourceLocation } from '../netlist/circuit.js';
+import type { Circuit, Diode, Element, NetlistDiagnostic, SourceLocation } from '../netlist/circuit.js';
 import type { Finding, Fix } from '../findings.js';
 import { effectiveSettings, type WorkspaceConfig } from '../config.js';
 import type { Settings } from '../settings.js';
 import type { Corner, DiodeOperatingPoint, SolveOptions, SolveResult } from '../sim/types.js';
 import { hazardCautions } from './cautions.js';
 import { solveWithHeldCharge } from './held-charge.js';
-import { classifyDiode, probeForwardVoltage } from './classify.js';
-import { atCorner, replaceElement, probeSource, THEVENIN_PROBE_STEP, type CheckContext, type CheckedDiode, type DiodeAtCorner } from './context.js';
+import { classifyDiode, probeForwardVoltage, type Classification } from './classify.js';
+import { atCorner, probeSource, THEVENIN_PROBE_STEP, type CheckContext, type CheckedDiode, type DiodeAtCorner } from './context.js';
 import { cornerPlanning, type CornerPlan, type SupplyLimits } from './corners.js';
 import { readDirectives, type Directives } from './directives.js';
 import { defaultSolver } from './engine.js';
@@ -18,6 +18,7 @@ import { declaredKind, describeRating, diodeRatings, resistorRatings, type Resis
 import { RULES } from './rules/index.js';
 import type { Solver } from './solver.js';
 import { applySuppressions } from './suppression.js';
+import { buildRegions, localCircuit, localCorner, takenNames } from './regions.js';
 import { buildTopology, nodesWithinRails } from './topology.js';
 import { RATING_SYMBOLS, type DiodeKind, type DiodeRatingKey } from './vocabulary.js';
 import type { ValueSource } from './provenance.js';
@@ -88,6 +89,12 @@ export interface CheckResult {
 
 /** Wall-clock budget for all counterfactual solves of one check (ours: keeps an edit-time check responsive). */
 export const COUNTERFACTUAL_BUDGET_MILLISECONDS = 3000;
+/**
+ * Wall-clock budget for solving all the corners of one check, on top of each corner's own
+ * budget (ours: two corners' worth of the solver's 10 s default, so that 96 corners of a hard
+ * circuit cannot hold a check for minutes).
+ */
+export const CORNER_SOLVES_BUDGET_MILLISECONDS = 20_000;
 
 /** Diagnostics of the netlist and the solver that say what could not be checked (passed through). */
 const HONESTY_CODES: ReadonlySet<string> = new Set(['unknown-model', 'unmodeled-element', 'floating-node', 'unsolved-circuit']);
@@ -136,11 +143,21 @@ export function checkWith(
   if (options.budgetMilliseconds !== undefined) solveOptions.budgetMilliseconds = options.budgetMilliseconds;
   if (options.iterationLimit !== undefined) solveOptions.iterationLimit = options.iterationLimit;
   if (options.cancellation !== undefined) solveOptions.cancellation = options.cancellation;
-  const solves = solve(circuit, plans.map((plan) => plan.corner), solveOptions);
+  // The corners move supplies by a few per cent from nominal: each starts from the nominal solution.
+  const solves = solve(
+    circuit,
+    plans.map((plan) => plan.corner),
+    { ...solveOptions, startFromFirstCorner: true, totalBudgetMilliseconds: Math.min(options.totalBudgetMilliseconds ?? Number.POSITIVE_INFINITY, CORNER_SOLVES_BUDGET_MILLISECONDS) },
+  );
 
   findings.push(...honestyFindings(circuit, solves));
   const topology = buildTopology(circuit);
   const diodes = checkedDiodes(circuit, plans, solves, directives, config, topology, solve, solveOptions);
+  const diodesByElement = new Map<Element, CheckedDiode>(diodes.map((diode) => [diode.element, diode]));
+  const elementsByName = new Map<string, Element>();
+  for (const element of circuit.elements) if (!elementsByName.has(element.name)) elementsByName.set(element.name, element);
+  const regions = buildRegions(circuit, topology);
+  const taken = takenNames(circuit);
   const held = solveWithHeldCharge(circuit, topology, plans, solves, solve, solveOptions);
   if (held) {
     for (const diode of diodes) {
@@ -173,6 +190,23 @@ export function checkWith(
     return { ...solveOptions, budgetMilliseconds: Math.min(solveOptions.budgetMilliseconds ?? Number.POSITIVE_INFINITY, share) };
   };
   const fixRequests: { finding: Finding; request: FixRequest }[] = [];
+  const solveWithReplacements = (replacements: ReadonlyMap<Element, Element>, corners: readonly { plan: number; corner: Corner }[]): (SolveResult | undefined)[] => {
+    if (!withinBudget()) return [];
+    if (!regions) {
+      const variant = { ...circuit, elements: circuit.elements.map((element) => replacements.get(element) ?? element) };
+      return solve(variant, corners.map((each) => each.corner), counterfactualOptions(corners.length));
+    }
+    // Only the regions that the replaced elements reach, with their rails held as solved at each corner.
+    const local = localCircuit(circuit, regions, replacements, taken);
+    const localCorners = corners.map((each) => {
+      const base = solves[each.plan];
+      return base ? localCorner(each.corner, local.rails, base) : undefined;
+    });
+    const wanted = localCorners.filter((corner): corner is Corner => corner !== undefined);
+    const results = wanted.length > 0 ? solve(local.circuit, wanted, counterfactualOptions(wanted.length)) : [];
+    let next = 0;
+    return localCorners.map((corner) => (corner ? results[next++] : undefined));
+  };
   const context: CheckContext = {
     circuit,
     settings,
@@ -185,7 +219,8 @@ export function checkWith(
     heldCapacitors: (held?.capacitors ?? []).map(({ capacitor, voltage }) => ({ name: capacitor.name, voltage })),
     solveVariant: (variant, variantPlans) =>
       withinBudget() ? solve(variant, variantPlans.map((plan) => plan.corner), counterfactualOptions(variantPlans.length)) : [],
-    theveninView: (diode, at) => (withinBudget() ? theveninView(circuit, diode, at, solve, counterfactualOptions(2)) : undefined),
+    solveWithReplacements,
+    theveninView: (diode, at) => theveninView(circuit, diode, at, plans.indexOf(at.plan), taken, solveWithReplacements),
     fixesFor: (request, finding): Fix[] => {
       fixRequests.push({ finding, request });
       if (!options.fixProvider) return [];
@@ -195,7 +230,11 @@ export function checkWith(
         return []; // a fix that cannot be built is not offered; the finding stands
       }
     },
-    elementNamed: (name) => circuit.elements.find((element) => element.name === name),
+    elementNamed: (name) => elementsByName.get(name),
+    diodeOf: (element) => diodesByElement.get(element),
+    resistorTolerances,
+    regions,
+    takenNames: taken,
   };
   for (const rule of RULES) {
     if (options.cancellation?.isCancellationRequested) break;
@@ -278,13 +317,16 @@ function checkedDiodes(
   const reportedUnmodeled = [...circuit.diagnostics, ...solves.flatMap((result) => result.diagnostics)].filter(
     (diagnostic) => diagnostic.code === 'unmodeled-element',
   );
-  const sameLocation = (a: SourceLocation, b: SourceLocation) => a.uri === b.uri && a.range.start.offset === b.range.start.offset;
+  const placeOf = (location: SourceLocation) => `${location.range.start.offset}|${location.uri}`;
+  const unmodeledPlaces = new Set(reportedUnmodeled.map((diagnostic) => placeOf(diagnostic.location)));
   for (const element of circuit.elements) {
-    const unmodeled = element.type === 'unmodeled' || reportedUnmodeled.some((diagnostic) => sameLocation(diagnostic.location, element.location));
+    const unmodeled = element.type === 'unmodeled' || (unmodeledPlaces.size > 0 && unmodeledPlaces.has(placeOf(element.location)));
     if (!unmodeled) continue;
     for (const node of element.nodes) for (const reached of nodesWithinRails(topology, node)) tainted.set(reached, element.name);
   }
   const forwardVoltages = new Map<string, number | undefined>();
+  const classifications = new Map<string, Classification>();
+  const modelIds = new Map<Diode['model'], number>();
   const diodes: CheckedDiode[] = [];
   for (const element of circuit.elements) {
     if (element.type !== 'D') continue;
@@ -303,10 +345,19 @@ function checkedDiodes(
       kindReason = declared.source.description;
       kindSource = declared.source;
     } else {
-      const probeKey = `${element.model.name.toLowerCase()}|${element.area}|${element.temperature ?? ''}`;
-      if (!forwardVoltages.has(probeKey)) forwardVoltages.set(probeKey, probeForwardVoltage(circuit, element, solve, options));
+      // By the model itself: two subcircuit instances may each hold a model of the same name.
+      let modelId = modelIds.get(element.model);
+      if (modelId === undefined) modelIds.set(element.model, (modelId = modelIds.size));
+      const probeKey = `${modelId}|${element.area}|${element.temperature ?? ''}`;
+      // Cancelled: the check's result is thrown away, so the probe solve is not worth starting.
+      if (!forwardVoltages.has(probeKey) && !options.cancellation?.isCancellationRequested) {
+        forwardVoltages.set(probeKey, probeForwardVoltage(circuit, element, solve, options));
+      }
       const usedInBreakdown = corners.some((each) => each.point.region === 'breakdown');
-      const classification = classifyDiode(element, forwardVoltages.get(probeKey), usedInBreakdown);
+      // Diodes of one model, area and temperature used alike are classified alike.
+      const classificationKey = `${probeKey}|${usedInBreakdown}`;
+      let classification = classifications.get(classificationKey);
+      if (!classification) classifications.set(classificationKey, (classification = classifyDiode(element, forwardVoltages.get(probeKey), usedInBreakdown)));
       kind = classification.kind;
       kindReason = classification.reason;
       kindSource = { origin: 'classification', description: classification.reason };
@@ -321,16 +372,26 @@ function checkedDiodes(
 }
 
 /** Replaces the diode by a voltage source at its own voltage and at a step below, and reads the change in current. */
-function theveninView(circuit: Circuit, diode: CheckedDiode, at: DiodeAtCorner, solve: Solver, options: SolveOptions): TheveninView | undefined {
-  const source = probeSource(circuit, diode.element as Diode, at.point.voltage);
-  const variant = replaceElement(circuit, diode.element, source);
+function theveninView(
+  circuit: Circuit,
+  diode: CheckedDiode,
+  at: DiodeAtCorner,
+  planIndex: number,
+  taken: ReadonlySet<string>,
+  solveWithReplacements: CheckContext['solveWithReplacements'],
+): TheveninView | undefined {
+  if (planIndex < 0) return undefined; // not a corner of this check's plans
+  const source = probeSource(circuit, diode.element as Diode, at.point.voltage, taken);
   const base = at.plan.corner;
   const corners: Corner[] = [at.point.voltage, at.point.voltage - THEVENIN_PROBE_STEP].map((voltage, index) => ({
     ...base,
     name: `${base.name} probe ${index}`,
     sources: { ...(base.sources ?? {}), [source.name]: voltage },
   }));
-  const [atVoltage, belowVoltage] = solve(variant, corners, options);
+  const [atVoltage, belowVoltage] = solveWithReplacements(
+    new Map([[diode.element, source]]),
+    corners.map((corner) => ({ plan: planIndex, corner })),
+  );
   if (!atVoltage?.ok || !belowVoltage?.ok) {
     // The probe closes a loop of ideal voltage sources: an ideal source holds the diode's terminals.
     const loop = [atVoltage, belowVoltage].some((result) => result && !result.ok && result.diagnostics.some((each) => each.code === 'unsolved-circuit'));

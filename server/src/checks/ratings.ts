@@ -1,7 +1,7 @@
 // Ratings and kinds, merged in issue 4's order (later wins): the generic part-class
 // library → the model's BV → pnlint.json (model, then instance) → `*pnlint: rating` on the
 // model → on the instance. Each value keeps where it came from.
-import type { Circuit, Diode, Resistor } from '../netlist/circuit.js';
+import type { Circuit, Diode, Model, Resistor } from '../netlist/circuit.js';
 import type { WorkspaceConfig } from '../config.js';
 import type { Settings } from '../settings.js';
 import { formatPercent, formatQuantity } from '../units.js';
@@ -23,17 +23,61 @@ interface Layer {
   values: Partial<Record<RatingKey, RatedValue>>;
 }
 
+/** The rating layers of pnlint.json and the directives, by target, built once per check. */
+interface LayerIndex {
+  /** pnlint.json ratings by lower-cased target (a model or an instance name). */
+  config: Map<string, Layer[]>;
+  /** Directive ratings on a model, by its key in `circuit.models`. */
+  models: Map<string, Layer[]>;
+  /** Directive ratings on an element, by its name as written. */
+  elements: Map<string, Layer[]>;
+}
+
+const layerIndexes = new WeakMap<Directives, { config: WorkspaceConfig | undefined; index: LayerIndex }>();
+/** Each model's key in `circuit.models`, per circuit. */
+const modelKeys = new WeakMap<Circuit, Map<Model, string>>();
+
+function push<K>(map: Map<K, Layer[]>, key: K, layer: Layer): void {
+  const list = map.get(key);
+  if (list) list.push(layer);
+  else map.set(key, [layer]);
+}
+
+function layerIndex(directives: Directives, config: WorkspaceConfig | undefined): LayerIndex {
+  const cached = layerIndexes.get(directives);
+  if (cached && cached.config === config) return cached.index;
+  const index: LayerIndex = { config: new Map(), models: new Map(), elements: new Map() };
+  for (const rating of config?.ratings ?? []) push(index.config, rating.target.toLowerCase(), rating);
+  for (const assignment of directives.ratings) {
+    if (assignment.target.kind === 'model') push(index.models, assignment.target.key, assignment);
+    else if (assignment.target.kind === 'element') push(index.elements, assignment.target.name, assignment);
+  }
+  layerIndexes.set(directives, { config, index });
+  return index;
+}
+
+function modelKeyOf(circuit: Circuit, model: Model): string | undefined {
+  let keys = modelKeys.get(circuit);
+  if (!keys) {
+    keys = new Map();
+    // The first key of a model, as a search from the start would find it.
+    for (const [key, each] of circuit.models) if (!keys.has(each)) keys.set(each, key);
+    modelKeys.set(circuit, keys);
+  }
+  return keys.get(model);
+}
+
 /** The pnlint.json and directive layers that apply to a diode, model first, instance last. */
 function diodeLayers(circuit: Circuit, diode: Diode, directives: Directives, config: WorkspaceConfig | undefined): Layer[] {
+  const index = layerIndex(directives, config);
   const modelName = diode.model.name.toLowerCase();
-  const modelKey = [...circuit.models.entries()].find(([, model]) => model === diode.model)?.[0] ?? modelName;
-  const layers: Layer[] = [];
-  const fromConfig = (name: string) => config?.ratings.filter((rating) => rating.target.toLowerCase() === name) ?? [];
-  layers.push(...fromConfig(modelName), ...fromConfig(diode.name.toLowerCase()));
-  const fromDirectives = (match: (assignment: RatingAssignment) => boolean) => directives.ratings.filter(match);
-  layers.push(...fromDirectives((each) => each.target.kind === 'model' && each.target.key === modelKey));
-  layers.push(...fromDirectives((each) => each.target.kind === 'element' && each.target.name === diode.name));
-  return layers;
+  const modelKey = modelKeyOf(circuit, diode.model) ?? modelName;
+  return [
+    ...(index.config.get(modelName) ?? []),
+    ...(index.config.get(diode.name.toLowerCase()) ?? []),
+    ...(index.models.get(modelKey) ?? []),
+    ...(index.elements.get(diode.name) ?? []),
+  ];
 }
 
 /** The kind given by a directive or pnlint.json, if any (the instance's wins over the model's). */
@@ -102,11 +146,8 @@ export function resistorRatings(
       source: { origin: 'setting', description: 'default resistor tolerance (setting)' },
     };
   }
-  const name = resistor.name.toLowerCase();
-  const layers: Layer[] = [
-    ...(config?.ratings.filter((rating) => rating.target.toLowerCase() === name) ?? []),
-    ...directives.ratings.filter((each) => each.target.kind === 'element' && each.target.name === resistor.name),
-  ];
+  const index = layerIndex(directives, config);
+  const layers: Layer[] = [...(index.config.get(resistor.name.toLowerCase()) ?? []), ...(index.elements.get(resistor.name) ?? [])];
   for (const layer of layers) {
     if (layer.values.p) ratings.power = layer.values.p;
     if (layer.values.tol) ratings.tolerance = layer.values.tol;
@@ -114,8 +155,22 @@ export function resistorRatings(
   return ratings;
 }
 
+/** Texts of ratings already described: a board of a thousand diodes of one part repeats a few (ours: the bound keeps the editor's memory flat). */
+const describedRatings = new Map<string, string>();
+const MAXIMUM_DESCRIBED_RATINGS = 4096;
+
 /** "VRRM 25 V from directive on line 3", "IF 20 mA (rule of thumb for LEDs)". */
 export function describeRating(key: RatingKey, rated: RatedValue): string {
+  const cacheKey = `${key}\u0000${rated.value}\u0000${rated.source.description}`;
+  const known = describedRatings.get(cacheKey);
+  if (known !== undefined) return known;
+  if (describedRatings.size >= MAXIMUM_DESCRIBED_RATINGS) describedRatings.clear();
+  const text = ratingText(key, rated);
+  describedRatings.set(cacheKey, text);
+  return text;
+}
+
+function ratingText(key: RatingKey, rated: RatedValue): string {
   const { symbol, unit } = RATING_SYMBOLS[key];
   const value = key === 'tol' ? formatPercent(rated.value) : formatQuantity(rated.value, unit);
   const source = rated.source.description;

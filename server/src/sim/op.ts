@@ -33,13 +33,26 @@ const MAXIMUM_CONTINUATION_STEPS = 1000;
 
 export const NOMINAL_CORNER: Corner = { name: 'nominal' };
 
-function lookup(map: Record<string, number> | undefined, name: string): number | undefined {
-  if (!map) return undefined;
-  const exact = map[name];
-  if (typeof exact === 'number') return exact;
-  const lower = name.toLowerCase();
-  for (const key of Object.keys(map)) if (key.toLowerCase() === lower) return map[key];
-  return undefined;
+/**
+ * Reads a name → number map as written, else case-insensitively (the first key that matches),
+ * through an index built on the first miss: a corner that scales thousands of resistors is
+ * read by thousands of devices, which must not each scan every key.
+ */
+function caseInsensitiveLookup(map: Record<string, number> | undefined): (name: string) => number | undefined {
+  if (!map) return () => undefined;
+  let lowerCased: Map<string, number> | undefined;
+  return (name) => {
+    const exact = map[name];
+    if (typeof exact === 'number') return exact;
+    if (!lowerCased) {
+      lowerCased = new Map();
+      for (const key of Object.keys(map)) {
+        const lower = key.toLowerCase();
+        if (!lowerCased.has(lower)) lowerCased.set(lower, map[key]!);
+      }
+    }
+    return lowerCased.get(name.toLowerCase());
+  };
 }
 
 function positiveOption(options: Record<string, number>, key: string, fallback: number): number {
@@ -72,11 +85,13 @@ function tolerancesOf(circuit: Circuit, options: SolveOptions): Tolerances {
 function conditionsOf(circuit: Circuit, corner: Corner, tolerances: Tolerances): CornerConditions {
   const celsius = corner.temperature ?? circuit.temperature ?? DEFAULT_TEMPERATURE_CELSIUS;
   const nominalCelsius = positiveOption(circuit.options ?? {}, 'tnom', Number.NaN);
+  const scaleOf = caseInsensitiveLookup(corner.scale);
+  const sourceOf = caseInsensitiveLookup(corner.sources);
   return {
     temperature: celsius + ZERO_CELSIUS_IN_KELVIN,
     nominalTemperature: (Number.isFinite(nominalCelsius) ? nominalCelsius : DEFAULT_TEMPERATURE_CELSIUS) + ZERO_CELSIUS_IN_KELVIN,
-    scaleOf: (name) => lookup(corner.scale, name) ?? 1,
-    sourceValue: (name, value) => lookup(corner.sources, name) ?? value,
+    scaleOf: (name) => scaleOf(name) ?? 1,
+    sourceValue: (name, value) => sourceOf(name) ?? value,
     gmin: tolerances.gmin,
     relativeTolerance: tolerances.relativeTolerance,
   };
@@ -114,8 +129,9 @@ export function solveOperatingPoint(compiled: CompiledCircuit, corner: Corner = 
     const state = new NewtonState(system.size);
     const warm = options.initialGuess !== undefined;
     if (options.initialGuess) {
+      const guess = caseInsensitiveLookup(options.initialGuess);
       for (const [name, index] of compiled.nodeIndex) {
-        const value = lookup(options.initialGuess, name);
+        const value = guess(name);
         if (index > 0 && value !== undefined && Number.isFinite(value)) state.solution[index] = value;
       }
       for (const device of system.devices) device.warmStart?.(state.solution);
@@ -313,8 +329,57 @@ function buildPoint(compiled: CompiledCircuit, solution: Float64Array, corner: s
   return { corner, nodes, branches, terminals, diodes, method, iterations, milliseconds };
 }
 
-/** Compiles once and solves each corner in turn (each from a cold start, as a reference SPICE engine would). */
-export function solveCorners(circuit: Circuit, corners: Corner[], options: SolveOptions = {}): SolveResult[] {
+/**
+ * Compiles once and solves each corner in turn: each from a cold start, as a reference SPICE
+ * engine would, unless `startFromFirstCorner` asks for warm starts; within `totalBudgetMilliseconds`
+ * for all of them when it is given.
+ */
+export function solveCorners(circuit: Circuit, corners: readonly Corner[], options: SolveOptions = {}): SolveResult[] {
+  const started = performance.now();
   const compiled = compileCircuit(circuit);
-  return corners.map((corner) => solveOperatingPoint(compiled, corner, options));
+  const total = options.totalBudgetMilliseconds;
+  const warm = options.startFromFirstCorner === true && options.initialGuess === undefined && !holdsSwitchState(circuit);
+  const results: SolveResult[] = [];
+  let firstSolution: Record<string, number> | undefined;
+  for (const corner of corners) {
+    let cornerOptions = options;
+    if (total !== undefined) {
+      const remaining = total - (performance.now() - started);
+      if (remaining <= 0) {
+        results.push(notReached(compiled, corner, total));
+        continue;
+      }
+      cornerOptions = { ...options, budgetMilliseconds: Math.min(options.budgetMilliseconds ?? DEFAULT_BUDGET_MILLISECONDS, remaining) };
+    }
+    let result: SolveResult | undefined;
+    if (warm && firstSolution) {
+      result = solveOperatingPoint(compiled, corner, { ...cornerOptions, initialGuess: firstSolution });
+      // A warm start that does not converge says nothing about the corner: solve it cold as well.
+      if (!result.ok && !options.cancellation?.isCancellationRequested) result = undefined;
+    }
+    result ??= solveOperatingPoint(compiled, corner, cornerOptions);
+    if (warm && results.length === 0 && result.ok) firstSolution = result.point.nodes;
+    results.push(result);
+  }
+  return results;
+}
+
+/**
+ * Switches keep their state from one Newton iteration to the next and may settle either way
+ * near their thresholds: a warm start could leave one in another state than a cold start
+ * would, so such circuits are always solved cold.
+ */
+function holdsSwitchState(circuit: Circuit): boolean {
+  return circuit.elements.some((element) => element.type === 'S' || element.type === 'W');
+}
+
+function notReached(compiled: CompiledCircuit, corner: Corner, total: number): SolveResult {
+  const diagnostics: NetlistDiagnostic[] = [...compiled.diagnostics];
+  diagnostics.push({
+    severity: 'warning',
+    code: 'unsolved-circuit',
+    message: `the solve at corner ${corner.name} was not started: the ${total} ms budget for all corners was spent on the corners before it`,
+    location: circuitLocation(compiled.circuit),
+  });
+  return { ok: false, corner: corner.name, diagnostics };
 }

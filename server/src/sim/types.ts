@@ -66,4 +66,15 @@ export interface SolveOptions {
   cancellation?: CancellationToken;
   /** Node name → voltage to start Newton from (e.g. another corner's solution), instead of SPICE's cold start. */
   initialGuess?: Record<string, number>;
+  /**
+   * Wall-clock budget for all the corners of one `solveCorners` call, ms; each corner's own
+   * budget is cut to what is left. Corners not reached in time come back unsolved, saying why.
+   */
+  totalBudgetMilliseconds?: number;
+  /**
+   * `solveCorners` starts every corner after the first from the first corner's solution (a
+   * corner moves a supply by a few per cent: Newton then needs fewer iterations), and solves a
+   * corner cold again when that start does not converge. Ignored when `initialGuess` is given.
+   */
+  startFromFirstCorner?: boolean;
 }

@@ -75,8 +75,12 @@ export const ledCurrentUnlimited: Rule = {
 };
 
 function inParallelWithAnotherLed(context: CheckContext, diode: CheckedDiode): boolean {
-  const [anode, cathode] = diode.element.nodes;
-  return context.diodes.some(
-    (other) => other !== diode && other.kind === 'led' && other.element.nodes[0] === anode && other.element.nodes[1] === cathode,
-  );
+  const [anode, cathode] = diode.element.nodes as [string, string];
+  // A partner sits on both nodes: look along the node with fewer elements on it.
+  const atAnode = context.topology.connections.get(anode) ?? [];
+  const atCathode = context.topology.connections.get(cathode) ?? [];
+  return (atAnode.length <= atCathode.length ? atAnode : atCathode).some((element) => {
+    if (element === diode.element || element.type !== 'D') return false;
+    return element.nodes[0] === anode && element.nodes[1] === cathode && context.diodeOf(element)?.kind === 'led';
+  });
 }

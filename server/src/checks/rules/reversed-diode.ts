@@ -45,9 +45,6 @@ export const reversedDiode: Rule = {
   },
 };
 
-/** Beyond this many suspects, they are turned around together in one solve rather than one solve each (ours: bounds the cost). */
-export const SEPARATE_FLIP_LIMIT = 4;
-
 /** A freewheel diode conducting at DC, or any diode carrying a supply-short current through next to no resistance. */
 function drivenForwardIntoShort(context: CheckContext, diode: CheckedDiode): Finding | undefined {
   const worst = worstCorner(diode, forwardCurrent);
@@ -91,26 +88,63 @@ function isSuspect(context: CheckContext, diode: CheckedDiode, partners: Conduct
 }
 
 /**
- * Each suspect's largest current with it turned around, and the corner where it flows. A few
- * suspects are flipped one at a time; many are flipped together in one solve.
+ * Each suspect's largest current with it turned around, and the corner where it flows. Each
+ * suspect is judged as if it alone were turned around. Suspects in regions that cannot see
+ * each other (regions.ts) are turned around together, one from each region per solve, which
+ * gives each the same answer as a solve of its own; a solve that fails for such a batch is
+ * repeated for each suspect alone.
  */
 function solveFlipped(context: CheckContext, suspects: readonly CheckedDiode[]): Map<CheckedDiode, { current: number; plan: CornerPlan }> {
   const currents = new Map<CheckedDiode, { current: number; plan: CornerPlan }>();
-  const groups = suspects.length <= SEPARATE_FLIP_LIMIT ? suspects.map((diode) => [diode]) : [suspects];
-  for (const group of groups) {
-    const flips = new Map<Element, Diode>(group.map((diode) => [diode.element, { ...diode.element, nodes: [diode.element.nodes[1]!, diode.element.nodes[0]!] }]));
-    const variant = { ...context.circuit, elements: context.circuit.elements.map((element) => flips.get(element) ?? element) };
-    const results = context.solveVariant(variant, context.plans);
-    results.forEach((result, index) => {
-      if (!result.ok) return;
-      for (const diode of group) {
+  const corners = context.plans.map((plan, index) => ({ plan: index, corner: plan.corner }));
+  const flipTogether = (batch: readonly CheckedDiode[]): boolean => {
+    const flips = new Map<Element, Diode>(batch.map((diode) => [diode.element, { ...diode.element, nodes: [diode.element.nodes[1]!, diode.element.nodes[0]!] }]));
+    const results = context.solveWithReplacements(flips, corners);
+    let complete = results.length === corners.length;
+    context.plans.forEach((plan, index) => {
+      const result = results[index];
+      if (!result?.ok) {
+        if (context.solves[index]?.ok) complete = false; // the flip, not the circuit, failed to solve here
+        return;
+      }
+      for (const diode of batch) {
         const current = result.point.diodes[diode.element.name]?.current;
         const best = currents.get(diode);
-        if (current !== undefined && (!best || current > best.current)) currents.set(diode, { current, plan: context.plans[index]! });
+        if (current !== undefined && (!best || current > best.current)) currents.set(diode, { current, plan });
       }
     });
+    return complete;
+  };
+  for (const batch of batchesOfIndependentSuspects(context, suspects)) {
+    if (flipTogether(batch) || batch.length === 1) continue;
+    for (const diode of batch) {
+      currents.delete(diode);
+      flipTogether([diode]);
+    }
   }
   return currents;
+}
+
+/** The suspects in batches with at most one per region; one batch per suspect when the circuit has no independent regions. */
+function batchesOfIndependentSuspects(context: CheckContext, suspects: readonly CheckedDiode[]): CheckedDiode[][] {
+  const regions = context.regions;
+  if (!regions) return suspects.map((diode) => [diode]);
+  const perRegion = new Map<number | CheckedDiode, CheckedDiode[]>();
+  for (const diode of suspects) {
+    // A diode with both ends on rails shares its region with nothing.
+    const key = regions.regionOfElement(diode.element) ?? diode;
+    const list = perRegion.get(key);
+    if (list) list.push(diode);
+    else perRegion.set(key, [diode]);
+  }
+  const batches: CheckedDiode[][] = [];
+  for (const list of perRegion.values()) {
+    list.forEach((diode, index) => {
+      if (index === batches.length) batches.push([]);
+      batches[index]!.push(diode);
+    });
+  }
+  return batches;
 }
 
 function reversedVerdict(context: CheckContext, diode: CheckedDiode, best: { current: number; plan: CornerPlan } | undefined): Finding | undefined {
@@ -146,8 +180,11 @@ function conductingPartners(context: CheckContext): ConductingPartners {
   for (const diode of context.diodes) {
     if (!diode.corners.some((at) => at.point.current >= CONDUCTION_THRESHOLD)) continue;
     const [anode, cathode] = diode.element.nodes as [string, string];
-    partners.byAnode.set(anode, [...(partners.byAnode.get(anode) ?? []), diode]);
-    partners.byCathode.set(cathode, [...(partners.byCathode.get(cathode) ?? []), diode]);
+    for (const [index, node] of [[partners.byAnode, anode], [partners.byCathode, cathode]] as const) {
+      const list = index.get(node);
+      if (list) list.push(diode);
+      else index.set(node, [diode]);
+    }
   }
   return partners;
 }

@@ -18,7 +18,9 @@ export const sharedLedResistor: Rule = {
     for (const diode of context.diodes) {
       if (diode.kind !== 'led' || diode.unchecked) continue;
       const key = `${diode.element.nodes[0]}\u0000${diode.element.nodes[1]}`;
-      groups.set(key, [...(groups.get(key) ?? []), diode]);
+      const group = groups.get(key);
+      if (group) group.push(diode);
+      else groups.set(key, [diode]);
     }
     const findings: Finding[] = [];
     for (const group of groups.values()) {

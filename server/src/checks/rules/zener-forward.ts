@@ -23,7 +23,7 @@ export const zenerForward: Rule = {
       if (!worst || worst.value < PLAUSIBLE_CURRENT) continue;
       const partners = diode.element.nodes.flatMap((node) => seriesChain(context.topology, diode.element, node));
       const backToBack = partners.some((partner) => {
-        const other = context.diodes.find((each) => each.element === partner);
+        const other = context.diodeOf(partner);
         const there = other?.corners.find((at) => at.plan === worst.at.plan);
         return other?.kind === 'zener' && there !== undefined && there.point.region === 'breakdown';
       });

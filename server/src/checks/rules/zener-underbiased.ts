@@ -79,8 +79,7 @@ export const zenerUnderbiased: Rule = {
  * load resistors low do. Solves that corner beside the worst one found, and keeps the worse.
  */
 function splitTolerances(context: CheckContext, diode: CheckedDiode, worst: { at: DiodeAtCorner; value: number }): { at: DiodeAtCorner; value: number } | undefined {
-  const tolerances = new Map<string, number>();
-  for (const [name, ratings] of context.resistors) if (ratings.tolerance && ratings.tolerance.value > 0) tolerances.set(name, ratings.tolerance.value);
+  const tolerances = context.resistorTolerances;
   const feed = new Set(feedResistors(context.topology, diode.element, nodesAt(context, worst.at)).map((resistor) => resistor.name));
   if (tolerances.size === 0 || ![...feed].some((name) => tolerances.has(name))) return undefined;
   const plan = splitResistorCorner(context.circuit, worst.at.plan, feed, tolerances);
