@@ -170,14 +170,25 @@ export function serveAnalyses(
 
   const fixes = (job: FixJob) => {
     const ownCancellation = () => Atomics.load(job.cancelled, 0) === 1;
+    // Cancelled before it started: nothing to build.
+    if (ownCancellation()) {
+      port.postMessage({ type: 'fixes', id: job.id, fixes: undefined });
+      return;
+    }
     const token = { get isCancellationRequested() { return ownCancellation() || Atomics.load(waitingRuns, 0) > 0; } };
     try {
       const fixed = buildFixes(job.phaseOne, token);
       // Stopped only to let a newer run go first: build them again after it.
-      if (!fixed && !ownCancellation() && Atomics.load(waitingRuns, 0) > 0) fixJobs.unshift(job);
-      else port.postMessage({ type: 'fixes', id: job.id, fixes: fixed });
+      if (!fixed && !ownCancellation() && Atomics.load(waitingRuns, 0) > 0) {
+        fixJobs.unshift(job);
+        return;
+      }
+      if (!fixed) log(`fixes for ${job.phaseOne.analysis.uri} stopped part-way: its text changed`);
+      port.postMessage({ type: 'fixes', id: job.id, fixes: fixed });
     } catch (error) {
-      port.postMessage({ type: 'failed', id: job.id, error: describe(error) });
+      // The findings are already shown: they stay, without fixes.
+      log(`building the fixes for ${job.phaseOne.analysis.uri} failed: ${describe(error)}`);
+      port.postMessage({ type: 'fixes', id: job.id, fixes: undefined });
     }
   };
 
