@@ -707,18 +707,21 @@ class Elaborator {
     if (!reading || !isAmbiguousNumber(reading)) return;
     const unit = unitOfElement(letter);
     const intended = this.intendedReading(text, letter);
+    // Each reading is formatted once: a netlist full of such values spends its time here.
+    const engineReading = formatQuantity(reading.value, unit, EXACT_READING_DIGITS);
     let message = inExpression
-      ? `${text} is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads ${formatQuantity(reading.value, unit, EXACT_READING_DIGITS)}, ignoring the ${reading.ignored})`
-      : `${text} is read as ${formatQuantity(reading.value, unit, EXACT_READING_DIGITS)} by SPICE engines (the ${reading.ignored} is ignored)`;
+      ? `${text} is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads ${engineReading}, ignoring the ${reading.ignored})`
+      : `${text} is read as ${engineReading} by SPICE engines (the ${reading.ignored} is ignored)`;
     const suggestions: { title: string; edits: { location: SourceLocation; newText: string }[] }[] = [];
     const location = { uri, range };
     if (intended) {
-      message += `; ${intended.convention} it means ${formatQuantity(intended.value, unit, EXACT_READING_DIGITS)}`;
+      const intendedReading = formatQuantity(intended.value, unit, EXACT_READING_DIGITS);
+      message += `; ${intended.convention} it means ${intendedReading}`;
       const exact = formatSpiceNumber(intended.value);
-      suggestions.push({ title: `Write ${exact} (${formatQuantity(intended.value, unit, EXACT_READING_DIGITS)})`, edits: [{ location, newText: exact }] });
+      suggestions.push({ title: `Write ${exact} (${intendedReading})`, edits: [{ location, newText: exact }] });
     }
     const engine = formatSpiceNumber(reading.value);
-    suggestions.push({ title: `Write ${engine} (${formatQuantity(reading.value, unit, EXACT_READING_DIGITS)}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
+    suggestions.push({ title: `Write ${engine} (${engineReading}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
     this.sink.report(inExpression ? 'error' : 'warning', 'ambiguous-value', uri, range, message, { suggestions });
   }
 
