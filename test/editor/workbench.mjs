@@ -103,7 +103,10 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
     await page.goto(workbenchUrl(server, workspace, remoteUri, netlist), { waitUntil: 'domcontentloaded' });
     await page.locator('.monaco-workbench').waitFor();
     await editorLine(page, 'D1 ').waitFor();
-    await page.locator('.monaco-editor .squiggly-error').first().waitFor();
+    await page.locator('.monaco-editor .squiggly-error').first().waitFor().catch(async (error) => {
+      const statusBar = (await page.locator('.statusbar').first().textContent().catch(() => '')) ?? '';
+      throw new Error(`${error.message.split('\n')[0]}; the status bar reads ${JSON.stringify(statusBar)}`);
+    });
     await shoot('01-squiggle.png');
     await shoot('squiggle-editor.png', editor);
   });

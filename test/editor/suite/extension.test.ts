@@ -34,12 +34,17 @@ async function openNetlist(name: string): Promise<vscode.TextEditor> {
   return vscode.window.showTextDocument(document);
 }
 
-async function waitFor<T>(what: string, probe: () => T | undefined | false, milliseconds = ANALYSIS_WAIT_MILLISECONDS): Promise<T> {
+async function waitFor<T>(
+  what: string,
+  probe: () => T | undefined | false,
+  milliseconds = ANALYSIS_WAIT_MILLISECONDS,
+  seen: () => string = () => '',
+): Promise<T> {
   const deadline = Date.now() + milliseconds;
   for (;;) {
     const value = probe();
     if (value !== undefined && value !== false) return value;
-    if (Date.now() > deadline) throw new Error(`timed out after ${milliseconds} ms waiting for ${what}`);
+    if (Date.now() > deadline) throw new Error(`timed out after ${milliseconds} ms waiting for ${what}${seen() ? `; ${seen()}` : ''}`);
     await new Promise((resolve) => setTimeout(resolve, 50));
   }
 }
@@ -61,8 +66,11 @@ function lineStartingWith(document: vscode.TextDocument, prefix: string): number
 }
 
 async function ledFinding(document: vscode.TextDocument): Promise<vscode.Diagnostic> {
-  return waitFor(`a ${LED_RULE} diagnostic in ${document.uri.path}`, () =>
-    pnlintDiagnostics(document.uri).find((diagnostic) => ruleOf(diagnostic) === LED_RULE),
+  return waitFor(
+    `a ${LED_RULE} diagnostic in ${document.uri.path}`,
+    () => pnlintDiagnostics(document.uri).find((diagnostic) => ruleOf(diagnostic) === LED_RULE),
+    ANALYSIS_WAIT_MILLISECONDS,
+    () => `diagnostics seen: ${JSON.stringify(vscode.languages.getDiagnostics(document.uri).map((d) => `${d.source}/${ruleOf(d)}: ${d.message}`))}`,
   );
 }
 
