@@ -343,10 +343,14 @@ export function solveCorners(circuit: Circuit, corners: readonly Corner[], optio
   let firstSolution: Record<string, number> | undefined;
   for (const corner of corners) {
     let cornerOptions = options;
+    if (options.cancellation?.isCancellationRequested) {
+      results.push(notReached(compiled, corner, 'the solve was cancelled'));
+      continue;
+    }
     if (total !== undefined) {
       const remaining = total - (performance.now() - started);
       if (remaining <= 0) {
-        results.push(notReached(compiled, corner, total));
+        results.push(notReached(compiled, corner, `the ${total} ms budget for all corners was spent on the corners before it`));
         continue;
       }
       cornerOptions = { ...options, budgetMilliseconds: Math.min(options.budgetMilliseconds ?? DEFAULT_BUDGET_MILLISECONDS, remaining) };
@@ -373,12 +377,13 @@ function holdsSwitchState(circuit: Circuit): boolean {
   return circuit.elements.some((element) => element.type === 'S' || element.type === 'W');
 }
 
-function notReached(compiled: CompiledCircuit, corner: Corner, total: number): SolveResult {
+/** A corner not solved at all, and why. */
+function notReached(compiled: CompiledCircuit, corner: Corner, why: string): SolveResult {
   const diagnostics: NetlistDiagnostic[] = [...compiled.diagnostics];
   diagnostics.push({
     severity: 'warning',
     code: 'unsolved-circuit',
-    message: `the solve at corner ${corner.name} was not started: the ${total} ms budget for all corners was spent on the corners before it`,
+    message: `the solve at corner ${corner.name} was not started: ${why}`,
     location: circuitLocation(compiled.circuit),
   });
   return { ok: false, corner: corner.name, diagnostics };
