@@ -45,6 +45,7 @@ const artifacts = join(repositoryRoot, 'test/artifacts/editor');
 let codeServer;
 let browser;
 let runFolder;
+let temporaryFolder;
 /** Removed only after code-server has ended, since it writes there until then. */
 let removeRunFolder = false;
 
@@ -129,6 +130,7 @@ async function main() {
   await bundleSuite(suiteFolder);
 
   const environment = isolatedEnvironment(runFolder);
+  temporaryFolder = environment.TMPDIR;
   const extensionsFolder = installExtension(runFolder, environment);
   codeServer = await startCodeServer({ runFolder, environment, folder: uiWorkspace });
   log(`code-server ${codeServer.origin} (process group ${codeServer.processGroup})`);
@@ -214,6 +216,7 @@ try {
   await browser?.close().catch(() => {});
   await endProcessGroup(codeServer?.processGroup);
   if (removeRunFolder && runFolder) rmSync(runFolder, { recursive: true, force: true });
+  if (temporaryFolder) rmSync(temporaryFolder, { recursive: true, force: true });
   clearTimeout(overallTimer);
 }
 process.exit(exitCode);

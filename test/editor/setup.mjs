@@ -3,7 +3,7 @@
 // code-server process group that is always ended. See
 // ../../../shared/design/editor-testing.md for why each step is the way it is.
 import { execFileSync, spawn, spawnSync } from 'node:child_process';
-import { cpSync, existsSync, mkdirSync, openSync, readdirSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, mkdtempSync, openSync, readdirSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
 import { build } from 'esbuild';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
@@ -109,18 +109,26 @@ export async function freePort() {
   });
 }
 
-/** Environment that keeps code-server and Chromium inside the run folder, not in $HOME or /tmp. */
+/** Unix socket paths are limited to 107 bytes; Chromium and code-server put theirs in TMPDIR. */
+const SOCKET_FOLDER_PARENT = '/tmp';
+
+/**
+ * Environment that keeps code-server and Chromium inside the run folder, not in
+ * $HOME. TMPDIR is a short private folder instead: a clone in a deep folder would
+ * push their socket paths past the limit (Chromium aborts: "Socket path too long").
+ * The caller removes `environment.TMPDIR` at the end.
+ */
 export function isolatedEnvironment(runFolder) {
   const environment = { ...node24Environment() };
   for (const [name, folder] of [
     ['XDG_CONFIG_HOME', 'xdg-config'],
     ['XDG_DATA_HOME', 'xdg-data'],
     ['XDG_CACHE_HOME', 'xdg-cache'],
-    ['TMPDIR', 'tmp'],
   ]) {
     environment[name] = join(runFolder, folder);
     mkdirSync(environment[name], { recursive: true });
   }
+  environment.TMPDIR = mkdtempSync(join(SOCKET_FOLDER_PARENT, 'pnlint-editor-'));
   delete environment.VSCODE_IPC_HOOK_CLI;
   return environment;
 }
