@@ -48,14 +48,44 @@ const expressionLexer = new Lexer(expressionTokens, { positionTracking: 'onlyOff
 
 type BinaryOp = Extract<Expr, { kind: 'binary' }>['op'];
 
+/** How tightly each binary operator binds, loosest first; all of them group from the left. */
+const BINDING = new Map<TokenType, number>([
+  [Or, 1],
+  [And, 2],
+  [Comparison, 3],
+  [Plus, 4],
+  [Times, 5],
+]);
+
+/**
+ * One rule reads a chain of binary operators at every precedence level (the operands and
+ * operators are gathered, then grouped by precedence), rather than one rule per level: a
+ * lone number went through eight rule calls before. Actions test RECORDING_PHASE instead of
+ * allocating ACTION closures, and an OPTION or MANY whose only way in is one token type is
+ * entered only when that token is next (while the grammar is recorded, always).
+ */
 class ExpressionParser extends EmbeddedActionsParser {
   /** Maps the lexed slice's offsets into the whole text. */
   base = 0;
   index: LineIndex | undefined;
+  /** Operands and operators of the binary chains being read; each chain uses the part above where it began. */
+  private readonly chainOperands: Expr[] = [];
+  private readonly chainOperators: IToken[] = [];
 
-  constructor() {
-    super(expressionTokens, { recoveryEnabled: false, maxLookahead: 1 });
+  constructor(skipValidations: boolean) {
+    super(expressionTokens, { recoveryEnabled: false, maxLookahead: 1, skipValidations });
     this.performSelfAnalysis();
+  }
+
+  override reset(): void {
+    super.reset();
+    // A chain left half-read by a syntax error must not linger into the next expression.
+    this.chainOperands.length = 0;
+    this.chainOperators.length = 0;
+  }
+
+  private next(type: TokenType): boolean {
+    return this.RECORDING_PHASE || this.LA(1).tokenType === type;
   }
 
   private range(start: number, end: number): Range {
@@ -77,158 +107,163 @@ class ExpressionParser extends EmbeddedActionsParser {
   });
 
   ternary = this.RULE('ternary', (): Expr => {
-    const condition = this.SUBRULE(this.logicalOr);
+    const condition = this.SUBRULE(this.binary);
+    if (!this.next(Question)) return condition;
     let result = condition;
     this.OPTION(() => {
       this.CONSUME(Question);
       const whenTrue = this.SUBRULE1(this.ternary);
       this.CONSUME(Colon);
       const whenFalse = this.SUBRULE2(this.ternary);
-      result = this.ACTION(() => ({
-        kind: 'ternary' as const,
-        condition,
-        whenTrue,
-        whenFalse,
-        range: this.join(condition, whenFalse),
-      }));
+      if (this.RECORDING_PHASE) return;
+      result = { kind: 'ternary', condition, whenTrue, whenFalse, range: this.join(condition, whenFalse) };
     });
     return result;
   });
 
-  private binaryChain(name: string, operand: () => () => Expr, operator: TokenType) {
-    return this.RULE(name, (): Expr => {
-      let left = this.subrule(0, operand());
-      this.MANY(() => {
-        const op = this.CONSUME(operator);
-        const right = this.subrule(1, operand());
-        left = this.ACTION(() => ({
-          kind: 'binary' as const,
-          op: op.image as BinaryOp,
-          left,
-          right,
-          range: this.join(left, right),
-        }));
-      });
-      return left;
-    });
+  private readonly operatorAlternatives = [Or, And, Comparison, Plus, Times].map((type) => ({ ALT: () => this.CONSUME(type) }));
+
+  private readonly chainLink = (): void => {
+    const operator = this.OR(this.operatorAlternatives);
+    const operand = this.SUBRULE1(this.unary);
+    if (this.RECORDING_PHASE) return;
+    this.chainOperators.push(operator);
+    this.chainOperands.push(operand);
+  };
+
+  /** `a || b && c < d + e * f`: unary operands joined by binary operators. */
+  binary = this.RULE('binary', (): Expr => {
+    const first = this.SUBRULE(this.unary);
+    if (!this.RECORDING_PHASE && !BINDING.has(this.LA(1).tokenType)) return first;
+    const operandBase = this.chainOperands.length;
+    const operatorBase = this.chainOperators.length;
+    if (!this.RECORDING_PHASE) this.chainOperands.push(first);
+    this.MANY(this.chainLink);
+    if (this.RECORDING_PHASE) return first;
+    return this.groupChain(operandBase, operatorBase);
+  });
+
+  /** Groups the chain gathered above the bases by precedence, from the left, and removes it from the stacks. */
+  private groupChain(operandBase: number, operatorBase: number): Expr {
+    const operands = this.chainOperands;
+    const operators = this.chainOperators;
+    const values: Expr[] = [operands[operandBase]!];
+    const pending: IToken[] = [];
+    const reduce = (): void => {
+      const operator = pending.pop()!;
+      const right = values.pop()!;
+      const left = values.pop()!;
+      values.push({ kind: 'binary', op: operator.image as BinaryOp, left, right, range: this.join(left, right) });
+    };
+    for (let at = operatorBase; at < operators.length; at++) {
+      const operator = operators[at]!;
+      const binding = BINDING.get(operator.tokenType)!;
+      while (pending.length > 0 && BINDING.get(pending[pending.length - 1]!.tokenType)! >= binding) reduce();
+      pending.push(operator);
+      values.push(operands[operandBase + 1 + at - operatorBase]!);
+    }
+    while (pending.length > 0) reduce();
+    operands.length = operandBase;
+    operators.length = operatorBase;
+    return values[0]!;
   }
 
-  logicalOr: () => Expr = this.binaryChain('logicalOr', () => this.logicalAnd, Or);
-  logicalAnd: () => Expr = this.binaryChain('logicalAnd', () => this.comparison, And);
-  comparison: () => Expr = this.binaryChain('comparison', () => this.sum, Comparison);
-  sum: () => Expr = this.binaryChain('sum', () => this.product, Plus);
-  product: () => Expr = this.binaryChain('product', () => this.unary, Times);
+  private readonly prefixAlternatives = [{ ALT: () => this.CONSUME(Plus) }, { ALT: () => this.CONSUME(Not) }];
 
-  unary = this.RULE('unary', (): Expr => {
-    return this.OR([
-      {
-        ALT: () => {
-          const op = this.OR1([{ ALT: () => this.CONSUME(Plus) }, { ALT: () => this.CONSUME(Not) }]);
-          const operand = this.SUBRULE(this.unary);
-          return this.ACTION(() => ({
-            kind: 'unary' as const,
-            op: op.image as '-' | '+' | '!',
-            operand,
-            range: { start: this.tokenRange(op).start, end: operand.range.end },
-          }));
-        },
+  private prefixed(op: IToken, operand: Expr): Expr {
+    if (this.RECORDING_PHASE) return operand;
+    return { kind: 'unary', op: op.image as '-' | '+' | '!', operand, range: { start: this.tokenRange(op).start, end: operand.range.end } };
+  }
+
+  private readonly unaryAlternatives = [
+    {
+      ALT: (): Expr => {
+        const op = this.OR1(this.prefixAlternatives);
+        return this.prefixed(op, this.SUBRULE(this.unary));
       },
-      { ALT: () => this.SUBRULE(this.power) },
-    ]);
-  });
+    },
+    { ALT: (): Expr => this.SUBRULE(this.power) },
+  ];
+
+  unary = this.RULE('unary', (): Expr => this.OR(this.unaryAlternatives));
 
   // Binds tighter than unary minus, and chains from the left as ngspice 39 evaluates it:
   // -2^2 = -(2^2) = -4, 2^3^2 = (2^3)^2 = 64, 2^-1 = 0.5.
   power = this.RULE('power', (): Expr => {
     let result = this.SUBRULE(this.primary);
+    if (!this.next(Power)) return result;
     this.MANY(() => {
       const op = this.CONSUME(Power);
       const exponent = this.SUBRULE(this.exponent);
-      const base = result;
-      result = this.ACTION(() => ({
-        kind: 'binary' as const,
-        op: op.image as '^' | '**',
-        left: base,
-        right: exponent,
-        range: this.join(base, exponent),
-      }));
+      if (this.RECORDING_PHASE) return;
+      result = { kind: 'binary', op: op.image as '^' | '**', left: result, right: exponent, range: this.join(result, exponent) };
     });
     return result;
   });
 
-  /** The right side of `^`: a primary, perhaps signed (`2^-1`). */
-  exponent = this.RULE('exponent', (): Expr => {
-    return this.OR([
-      {
-        ALT: () => {
-          const op = this.OR1([{ ALT: () => this.CONSUME(Plus) }, { ALT: () => this.CONSUME(Not) }]);
-          const operand = this.SUBRULE(this.exponent);
-          return this.ACTION(() => ({
-            kind: 'unary' as const,
-            op: op.image as '-' | '+' | '!',
-            operand,
-            range: { start: this.tokenRange(op).start, end: operand.range.end },
-          }));
-        },
+  private readonly exponentAlternatives = [
+    {
+      ALT: (): Expr => {
+        const op = this.OR1(this.prefixAlternatives);
+        return this.prefixed(op, this.SUBRULE(this.exponent));
       },
-      { ALT: () => this.SUBRULE(this.primary) },
-    ]);
-  });
+    },
+    { ALT: (): Expr => this.SUBRULE(this.primary) },
+  ];
 
-  primary = this.RULE('primary', (): Expr => {
-    return this.OR([
-      {
-        ALT: () => {
-          const token = this.CONSUME(NumberLiteral);
-          return this.ACTION(() => ({
-            kind: 'num' as const,
-            value: readSpiceValue(token.image) ?? Number.NaN,
-            text: token.image,
-            range: this.tokenRange(token),
-          }));
-        },
+  /** The right side of `^`: a primary, perhaps signed (`2^-1`). */
+  exponent = this.RULE('exponent', (): Expr => this.OR(this.exponentAlternatives));
+
+  private readonly primaryAlternatives = [
+    {
+      ALT: (): Expr => {
+        const token = this.CONSUME(NumberLiteral);
+        if (this.RECORDING_PHASE) return undefined as unknown as Expr;
+        return { kind: 'num', value: readSpiceValue(token.image) ?? Number.NaN, text: token.image, range: this.tokenRange(token) };
       },
-      {
-        ALT: () => {
-          const name = this.CONSUME(Identifier);
-          let call: { args: Expr[]; close: IToken } | undefined;
-          this.OPTION(() => {
-            this.CONSUME(Open);
-            const args: Expr[] = [];
-            this.MANY_SEP({
-              SEP: Separator,
-              DEF: () => {
-                const arg = this.SUBRULE(this.ternary);
-                this.ACTION(() => args.push(arg));
-              },
-            });
-            const close = this.CONSUME(Close);
-            call = { args, close };
+    },
+    {
+      ALT: (): Expr => {
+        const name = this.CONSUME(Identifier);
+        if (!this.next(Open)) return { kind: 'ident', name: name.image, range: this.tokenRange(name) };
+        let call: { args: Expr[]; close: IToken } | undefined;
+        this.OPTION(() => {
+          this.CONSUME(Open);
+          const args: Expr[] = [];
+          this.MANY_SEP({
+            SEP: Separator,
+            DEF: () => {
+              const arg = this.SUBRULE(this.ternary);
+              if (!this.RECORDING_PHASE) args.push(arg);
+            },
           });
-          return this.ACTION((): Expr => {
-            if (!call) return { kind: 'ident', name: name.image, range: this.tokenRange(name) };
-            return {
-              kind: 'call',
-              name: name.image,
-              args: call.args,
-              range: this.range(name.startOffset, call.close.startOffset + 1),
-            };
-          });
-        },
+          const close = this.CONSUME(Close);
+          call = { args, close };
+        });
+        if (this.RECORDING_PHASE) return undefined as unknown as Expr;
+        if (!call) return { kind: 'ident', name: name.image, range: this.tokenRange(name) };
+        return { kind: 'call', name: name.image, args: call.args, range: this.range(name.startOffset, call.close.startOffset + 1) };
       },
-      {
-        ALT: () => {
-          this.CONSUME1(Open);
-          const inner = this.SUBRULE1(this.ternary);
-          this.CONSUME1(Close);
-          return inner;
-        },
+    },
+    {
+      ALT: (): Expr => {
+        this.CONSUME1(Open);
+        const inner = this.SUBRULE1(this.ternary);
+        this.CONSUME1(Close);
+        return inner;
       },
-    ]);
-  });
+    },
+  ];
+
+  primary = this.RULE('primary', (): Expr => this.OR(this.primaryAlternatives));
 }
 
 let parser: ExpressionParser | undefined;
+
+/** Builds the expression parser with Chevrotain's grammar validations on (they throw on a bad grammar); for a test. */
+export function validateExpressionGrammar(): void {
+  new ExpressionParser(false);
+}
 
 export interface ExpressionProblem {
   message: string;
@@ -309,7 +344,7 @@ export function readExpression(source: string, base: number, index: LineIndex): 
     const at = base + tooDeep.startOffset;
     return { expr: undefined, problem: { message: `the expression nests more than ${MAX_EXPRESSION_NESTING} deep`, range: index.range(at, at + tooDeep.image.length) } };
   }
-  parser ??= new ExpressionParser();
+  parser ??= new ExpressionParser(true);
   parser.index = index;
   parser.base = base;
   parser.input = lexed.tokens;

@@ -5,7 +5,7 @@
 // The grammar accepts every token sequence: what is wrong is reported per line by
 // the actions, so that one bad line never disturbs the next.
 
-import { createTokenInstance, EmbeddedActionsParser, type IToken } from 'chevrotain';
+import { createTokenInstance, EmbeddedActionsParser, type IToken, type TokenType } from 'chevrotain';
 import type { ExpressionField, Field, GroupField, Range, WordField, NumberField, AssignField } from './ast.js';
 import { readExpression, type ExpressionProblem } from './expression.js';
 import {
@@ -111,39 +111,49 @@ function beginsLikeNumber(text: string): boolean {
 /**
  * The alternatives and repetition bodies are built once, as fields, and the actions test
  * RECORDING_PHASE instead of wrapping themselves in ACTION closures: a closure per token
- * was most of the garbage that a large file made.
+ * was most of the garbage that a large file made. An OPTION or MANY whose only way in is
+ * one token type is entered only when that token is next (`LA(1)`): the same decision that
+ * its own lookahead makes, without the call. While the grammar is being recorded every
+ * production is visited, so the grammar of record is unchanged.
  */
 class FieldParser extends EmbeddedActionsParser {
   maker: FieldMaker | undefined;
   lines: FieldLine[] = [];
-  private current: Field[] = [];
+  /** The fields of the line being read; copied to an array of its exact size at the line's end. */
+  private readonly current: Field[] = [];
   /** The item lists of the groups being read, innermost last. */
   private groupItems: Field[][] = [];
   /** The `,`-separated rest of a list value (`ic=1,2`); the repetition that fills it does not nest. */
   private listRest: Field[] | undefined;
 
-  constructor() {
+  constructor(skipValidations: boolean) {
     // LL(1): every decision is made on the next token (the list GATE looks further by hand).
-    super(tokenTypes, { recoveryEnabled: false, maxLookahead: 1, skipValidations: false });
+    super(tokenTypes, { recoveryEnabled: false, maxLookahead: 1, skipValidations });
     this.performSelfAnalysis();
   }
 
   override reset(): void {
     super.reset();
-    this.current = [];
+    this.current.length = 0;
     this.groupItems = [];
     this.listRest = undefined;
   }
 
   private endLine(): void {
     const maker = this.maker!;
-    this.lines.push({ fields: this.current, problem: maker.problem });
-    this.current = [];
+    // A copy of exact size: an array grown by push keeps spare room, and every line's array is kept.
+    this.lines.push({ fields: this.current.slice(), problem: maker.problem });
+    this.current.length = 0;
     maker.problem = undefined;
   }
 
   private stray(token: IToken, message: string): void {
     if (!this.RECORDING_PHASE) this.maker!.report(message, this.maker!.tokenRange(token));
+  }
+
+  /** True when the next token is of `type`, or while the grammar is recorded (every path is visited then). */
+  private next(type: TokenType): boolean {
+    return this.RECORDING_PHASE || this.LA(1).tokenType === type;
   }
 
   private readonly strayEquals = {
@@ -153,13 +163,48 @@ class FieldParser extends EmbeddedActionsParser {
     ALT: () => this.stray(this.CONSUME(StrayBrace), 'this `}` closes nothing'),
   };
 
-  private readonly lineAlternatives = [
-    {
-      ALT: () => {
-        const field = this.SUBRULE(this.field);
-        if (!this.RECORDING_PHASE) this.current.push(field);
+  /**
+   * The three forms of a field, as alternatives of the rule that reads them (the line rule
+   * and the group rule each hold them, rather than calling a `field` rule: a rule call per
+   * word was a measurable part of the time). `add` receives each field read.
+   * Occurrence indices: OPTION1–4, SUBRULE–SUBRULE2, unused elsewhere in those two rules.
+   */
+  private fieldForms(add: (field: Field) => void): { ALT: () => void }[] {
+    return [
+      {
+        // The most frequent field: a word, perhaps naming a group, perhaps the key of `key=value`.
+        ALT: () => {
+          const token = this.CONSUME(Word);
+          const group = this.next(LeftParen) ? this.OPTION1(this.groupAfterWord) : undefined;
+          const value = this.next(Equals) ? this.OPTION2(this.assignmentAfterWord) : undefined;
+          if (!this.RECORDING_PHASE) add(wordWithTails(token, group, value, this.maker!));
+        },
       },
-    },
+      {
+        // `{v(a)} = (0,0) (1,1)`: ngspice's TABLE form takes an expression as the key.
+        ALT: () => {
+          const field = this.SUBRULE(this.simpleValue);
+          const value = this.next(Equals) ? this.OPTION3(this.assignmentAfterValue) : undefined;
+          if (!this.RECORDING_PHASE) add(value ? this.maker!.assign(field, value) : field);
+        },
+      },
+      {
+        ALT: () => {
+          const group = this.SUBRULE2(this.group);
+          const value = this.next(Equals) ? this.OPTION4(this.assignmentAfterGroup) : undefined;
+          if (!this.RECORDING_PHASE) add(value ? this.maker!.assign(group, value) : group);
+        },
+      },
+    ];
+  }
+
+  private readonly groupAfterWord = (): GroupField => this.SUBRULE1(this.group);
+  private readonly assignmentAfterWord = (): Field => this.SUBRULE(this.assignedValue);
+  private readonly assignmentAfterValue = (): Field => this.SUBRULE1(this.assignedValue);
+  private readonly assignmentAfterGroup = (): Field => this.SUBRULE2(this.assignedValue);
+
+  private readonly lineAlternatives = [
+    ...this.fieldForms((field) => this.current.push(field)),
     {
       ALT: () => {
         this.CONSUME(Newline);
@@ -178,45 +223,6 @@ class FieldParser extends EmbeddedActionsParser {
   netlist = this.RULE('netlist', () => {
     this.MANY(this.lineItem);
   });
-
-  private readonly fieldAlternatives = [
-    // The word form is written out here rather than as a rule of its own: it is the most
-    // frequent field, and a rule call per word was a measurable part of the time.
-    {
-      ALT: (): Field => {
-        const token = this.CONSUME(Word);
-        const group = this.OPTION2(this.groupAfterFieldWord);
-        const value = this.OPTION3(this.assignmentAfterFieldWord);
-        if (this.RECORDING_PHASE) return undefined as unknown as Field;
-        return wordWithTails(token, group, value, this.maker!);
-      },
-    },
-    {
-      // `{v(a)} = (0,0) (1,1)`: ngspice's TABLE form takes an expression as the key.
-      ALT: (): Field => {
-        const field = this.SUBRULE(this.simpleValue);
-        const value = this.OPTION1(this.assignmentAfterValue);
-        if (this.RECORDING_PHASE) return field;
-        return value ? this.maker!.assign(field, value) : field;
-      },
-    },
-    {
-      ALT: (): Field => {
-        const group = this.SUBRULE(this.group);
-        const value = this.OPTION(this.assignment);
-        if (this.RECORDING_PHASE) return group;
-        return value ? this.maker!.assign(group, value) : group;
-      },
-    },
-  ];
-
-  field = this.RULE('field', (): Field => this.OR(this.fieldAlternatives));
-
-  private readonly groupAfterFieldWord = (): GroupField => this.SUBRULE2(this.group);
-  private readonly assignmentAfterFieldWord = (): Field => this.SUBRULE2(this.assignedValue);
-  private readonly assignment = (): Field => this.SUBRULE(this.assignedValue);
-  private readonly assignmentAfterValue = (): Field => this.SUBRULE1(this.assignedValue);
-  private readonly groupAfterWord = (): GroupField => this.SUBRULE(this.group);
 
   private readonly simpleAlternatives = [
     { ALT: () => this.expressionToken(this.CONSUME(BraceExpression)) },
@@ -237,12 +243,7 @@ class FieldParser extends EmbeddedActionsParser {
   simpleValue = this.RULE('simpleValue', (): Field => this.OR(this.simpleAlternatives));
 
   private readonly groupAlternatives = [
-    {
-      ALT: () => {
-        const item = this.SUBRULE(this.field);
-        if (!this.RECORDING_PHASE) this.groupItems[this.groupItems.length - 1]!.push(item);
-      },
-    },
+    ...this.fieldForms((field) => this.groupItems[this.groupItems.length - 1]!.push(field)),
     { ALT: () => { this.CONSUME(Comma); } },
     this.strayEquals,
     this.strayBrace,
@@ -257,9 +258,11 @@ class FieldParser extends EmbeddedActionsParser {
     const open = this.CONSUME(LeftParen);
     if (!this.RECORDING_PHASE) this.groupItems.push([]);
     this.MANY(this.groupItem);
-    const close = this.OPTION(this.closeParen);
+    const close = this.next(RightParen) ? this.OPTION(this.closeParen) : undefined;
     if (this.RECORDING_PHASE) return undefined as unknown as GroupField;
-    const items = this.groupItems.pop()!;
+    const gathered = this.groupItems.pop()!;
+    // A copy of exact size, as for a line's fields.
+    const items = gathered.slice();
     const maker = this.maker!;
     let end = open.startOffset + 1;
     if (close) end = close.startOffset + 1;
@@ -275,7 +278,7 @@ class FieldParser extends EmbeddedActionsParser {
     {
       ALT: (): Field => {
         const token = this.CONSUME(Word);
-        const group = this.OPTION2(this.groupAfterWord);
+        const group = this.next(LeftParen) ? this.OPTION2(this.groupAfterValueWord) : undefined;
         if (this.RECORDING_PHASE) return undefined as unknown as Field;
         return group ? named(group, token, this.maker!) : this.maker!.wordOrNumber(token);
       },
@@ -284,6 +287,7 @@ class FieldParser extends EmbeddedActionsParser {
     { ALT: () => this.SUBRULE1(this.group) },
   ];
   private readonly value = (): Field => this.OR(this.valueAlternatives);
+  private readonly groupAfterValueWord = (): GroupField => this.SUBRULE(this.group);
 
   private readonly listRepetition = {
     GATE: () => this.LA(1).tokenType === Comma && this.LA(2).tokenType === Word && this.LA(3).tokenType !== Equals,
@@ -302,7 +306,7 @@ class FieldParser extends EmbeddedActionsParser {
     const equals = this.CONSUME(Equals);
     const first = this.OPTION(this.value);
     this.listRest = undefined;
-    this.MANY(this.listRepetition);
+    if (this.next(Comma)) this.MANY(this.listRepetition);
     if (this.RECORDING_PHASE) return undefined as unknown as Field;
     const maker = this.maker!;
     const rest = this.listRest;
@@ -339,6 +343,15 @@ function named(group: GroupField, token: IToken, maker: FieldMaker): GroupField 
 }
 
 let parser: FieldParser | undefined;
+
+/**
+ * Builds the field parser with Chevrotain's grammar validations on, which throws if the grammar
+ * is ambiguous or ill-formed. The parser in use skips them (they are a start-up cost, and the
+ * grammar does not change at run time); a test calls this instead.
+ */
+export function validateFieldGrammar(): void {
+  new FieldParser(false);
+}
 const endOfLine = createTokenInstance(Newline, '', Number.NaN, Number.NaN, Number.NaN, Number.NaN, Number.NaN, Number.NaN);
 
 /** Reads each line (a list of tokens) into fields, in one parser call. */
@@ -348,7 +361,7 @@ export function readFieldLines(lines: readonly (readonly IToken[])[], maker: Fie
     for (const token of line) input.push(token);
     input.push(endOfLine);
   }
-  parser ??= new FieldParser();
+  parser ??= new FieldParser(true);
   parser.maker = maker;
   parser.lines = [];
   parser.input = input;

@@ -8,7 +8,7 @@
 // 4. Each line becomes a statement; blocks (`.subckt`, `.lib`, `.if`) are nested.
 
 import type { IToken } from 'chevrotain';
-import type { Field, ParseDiagnostic, ParseOptions, ParseResult, Statement } from './ast.js';
+import type { ParseDiagnostic, ParseOptions, ParseResult, Statement } from './ast.js';
 import { FieldMaker, readFieldLines, type FieldLine } from './fields.js';
 import {
   atLineStart,
@@ -89,9 +89,9 @@ function parseUnguarded(text: string, options: ParseOptions): ParseResult {
 
 function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilder, diagnostics: ParseDiagnostic[], results: LineResult[]): void {
   const items = groupLines(tokens, maker, diagnostics);
-  // Lines of plain words (most element lines) need no grammar: each word is a field.
+  // Every element line and most dot commands go through the field parser, in one call per chunk.
   const structured: IToken[][] = [];
-  for (const item of items) if ('tokens' in item && !item.plain && needsFields(item)) structured.push(item.tokens);
+  for (const item of items) if ('tokens' in item && needsFields(item)) structured.push(item.tokens);
   const fieldLines = readFieldLines(structured, maker);
   let next = 0;
   for (const item of items) {
@@ -101,10 +101,6 @@ function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilde
     }
     if (!needsFields(item)) {
       results.push(builder.build(item, undefined, undefined));
-    } else if (item.plain) {
-      const fields: Field[] = new Array(item.tokens.length);
-      for (let at = 0; at < item.tokens.length; at++) fields[at] = maker.wordOrNumber(item.tokens[at]!);
-      results.push(builder.build(item, fields, undefined));
     } else {
       const reading: FieldLine = fieldLines[next++]!;
       results.push(builder.build(item, reading.fields, reading.problem));
@@ -248,15 +244,13 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
       continue;
     }
     if (!current) {
-      current = { tokens: [], comment: undefined, end: 0, plain: true, tooDeep: undefined };
+      current = { tokens: [], comment: undefined, end: 0, tooDeep: undefined, command: null };
       items.push(current);
       depth = 0;
     }
-    if (type !== Word) {
-      current.plain = false;
-      if (type === LeftParen && ++depth > MAX_NESTING) current.tooDeep ??= token;
-      else if (type === RightParen && depth > 0) depth--;
-    }
+    if (type === LeftParen) {
+      if (++depth > MAX_NESTING) current.tooDeep ??= token;
+    } else if (type === RightParen && depth > 0) depth--;
     current.tokens.push(token);
     current.end = token.startOffset + token.image.length;
   }

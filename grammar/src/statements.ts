@@ -24,10 +24,10 @@ export interface LogicalLine {
   comment: IToken | undefined;
   /** End offset of the last token, the comment included. */
   end: number;
-  /** Every token is a plain word: the line needs no grammar to read. */
-  plain: boolean;
   /** The `(` at which parentheses nest deeper than MAX_NESTING, if they do. */
   tooDeep: IToken | undefined;
+  /** The line's dot command once known (see dotCommandOf); null until then. */
+  command: string | undefined | null;
 }
 
 /**
@@ -85,9 +85,10 @@ const RAW_COMMANDS = new Set(['param', 'func', 'if', 'elseif', 'include', 'inc',
 
 /** The lower-cased dot command of a line (`model` for `.MODEL`), or undefined for an element line. */
 export function dotCommandOf(line: LogicalLine): string | undefined {
+  if (line.command !== null) return line.command;
   const first = line.tokens[0];
-  if (!first || first.tokenType !== Word || first.image.charCodeAt(0) !== 46) return undefined;
-  return first.image.slice(1).toLowerCase();
+  if (!first || first.tokenType !== Word || first.image.charCodeAt(0) !== 46) return (line.command = undefined);
+  return (line.command = first.image.slice(1).toLowerCase());
 }
 
 /** True when the line's words go through the field parser. */
