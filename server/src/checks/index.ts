@@ -203,7 +203,11 @@ export function checkWith(
       return base ? localCorner(each.corner, local.rails, base) : undefined;
     });
     const wanted = localCorners.filter((corner): corner is Corner => corner !== undefined);
-    const results = wanted.length > 0 ? solve(local.circuit, wanted, counterfactualOptions(wanted.length)) : [];
+    // A change in one place moves the solution little elsewhere: start from the base corner's solution.
+    const firstBase = solves[corners[localCorners.findIndex((corner) => corner !== undefined)]?.plan ?? -1];
+    const variantOptions: SolveOptions = { ...counterfactualOptions(wanted.length), startFromFirstCorner: true };
+    if (firstBase?.ok) variantOptions.initialGuess = firstBase.point.nodes;
+    const results = wanted.length > 0 ? solve(local.circuit, wanted, variantOptions) : [];
     let next = 0;
     return localCorners.map((corner) => (corner ? results[next++] : undefined));
   };

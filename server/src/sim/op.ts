@@ -338,11 +338,15 @@ export function solveCorners(circuit: Circuit, corners: readonly Corner[], optio
   const started = performance.now();
   const compiled = compileCircuit(circuit);
   const total = options.totalBudgetMilliseconds;
-  const warm = options.startFromFirstCorner === true && options.initialGuess === undefined && !holdsSwitchState(circuit);
+  const warm = options.startFromFirstCorner === true;
+  // In warm mode the caller's guess serves the first corner only, and circuits with switches get none.
+  const { initialGuess, ...withoutGuess } = options;
+  const coldOptions = warm ? withoutGuess : options;
+  const warmStarts = warm && !holdsSwitchState(circuit);
   const results: SolveResult[] = [];
-  let firstSolution: Record<string, number> | undefined;
+  let guess = warmStarts ? initialGuess : undefined;
   for (const corner of corners) {
-    let cornerOptions = options;
+    let cornerOptions = coldOptions;
     if (options.cancellation?.isCancellationRequested) {
       results.push(notReached(compiled, corner, 'the solve was cancelled'));
       continue;
@@ -353,16 +357,16 @@ export function solveCorners(circuit: Circuit, corners: readonly Corner[], optio
         results.push(notReached(compiled, corner, `the ${total} ms budget for all corners was spent on the corners before it`));
         continue;
       }
-      cornerOptions = { ...options, budgetMilliseconds: Math.min(options.budgetMilliseconds ?? DEFAULT_BUDGET_MILLISECONDS, remaining) };
+      cornerOptions = { ...coldOptions, budgetMilliseconds: Math.min(options.budgetMilliseconds ?? DEFAULT_BUDGET_MILLISECONDS, remaining) };
     }
     let result: SolveResult | undefined;
-    if (warm && firstSolution) {
-      result = solveOperatingPoint(compiled, corner, { ...cornerOptions, initialGuess: firstSolution });
+    if (guess) {
+      result = solveOperatingPoint(compiled, corner, { ...cornerOptions, initialGuess: guess });
       // A warm start that does not converge says nothing about the corner: solve it cold as well.
       if (!result.ok && !options.cancellation?.isCancellationRequested) result = undefined;
     }
     result ??= solveOperatingPoint(compiled, corner, cornerOptions);
-    if (warm && results.length === 0 && result.ok) firstSolution = result.point.nodes;
+    if (warmStarts && results.length === 0 && result.ok) guess = result.point.nodes;
     results.push(result);
   }
   return results;

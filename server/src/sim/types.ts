@@ -72,9 +72,10 @@ export interface SolveOptions {
    */
   totalBudgetMilliseconds?: number;
   /**
-   * `solveCorners` starts every corner after the first from the first corner's solution (a
-   * corner moves a supply by a few per cent: Newton then needs fewer iterations), and solves a
-   * corner cold again when that start does not converge. Ignored when `initialGuess` is given.
+   * `solveCorners` starts the first corner from `initialGuess` when one is given, and every
+   * later corner from the first corner's solution (a corner moves a supply by a few per cent:
+   * Newton then needs fewer iterations); a corner whose warm start does not converge is solved
+   * cold as well. Circuits with switches (S, W) are solved cold throughout.
    */
   startFromFirstCorner?: boolean;
 }
