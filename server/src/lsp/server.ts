@@ -35,6 +35,8 @@ export interface ServerOptions {
    * one). Without it, analyses run in the protocol thread.
    */
   analysisWorker?: URL;
+  /** A runner already started (entry.ts starts the worker before loading the server); it wins over `analysisWorker`. */
+  runner?: AnalysisRunner;
 }
 
 /** Files whose change on disk can change a check: netlists, libraries, and pnlint.json. */
@@ -93,7 +95,7 @@ export function startLanguageServer(connection: Connection, options: ServerOptio
   const refreshInlayHints = () => {
     if (capabilities.workspace?.inlayHint?.refreshSupport) void connection.languages.inlayHint.refresh().catch(() => undefined);
   };
-  const runner: AnalysisRunner = options.analysisWorker ? new WorkerRunner(options.analysisWorker, log) : new InlineRunner(log);
+  const runner: AnalysisRunner = options.runner ?? (options.analysisWorker ? new WorkerRunner(options.analysisWorker, log) : new InlineRunner(log));
   const checker = new Checker(connection, documents, workspace, settingsFor, pages, runner, refreshInlayHints);
   const context = new FeatureContext(connection, documents, workspace, checker);
 
