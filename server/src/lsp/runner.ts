@@ -257,12 +257,15 @@ export class WorkerRunner implements AnalysisRunner {
     const diodes = settleable<DiodeReport[] | undefined>();
     const fixes = settleable<FixedFindings | undefined>();
     let watchdog: NodeJS.Timeout | undefined;
+    /** Set once the findings arrived: the fixes stop between re-checks, and waiting for them never needs a new worker. */
+    let answered = false;
     const listener = token.onCancellationRequested(() => {
       Atomics.store(flag, 0, 1);
       const worker = this.worker;
+      if (answered) return;
       watchdog = setTimeout(() => {
         // Still busy long after it was told to stop: replace the worker rather than wait.
-        if (this.pending.has(id) && worker && this.worker === worker) {
+        if (!answered && this.pending.has(id) && worker && this.worker === worker) {
           this.log(`an analysis did not stop within ${CANCELLATION_GRACE_MILLISECONDS} ms of being cancelled; restarting the analysis worker`);
           void worker.terminate();
         }
@@ -280,6 +283,8 @@ export class WorkerRunner implements AnalysisRunner {
       attempts: 0,
       receive: (message) => {
         if (message.type === 'result') {
+          answered = true;
+          if (watchdog) clearTimeout(watchdog);
           diagnostics.resolve(message.result);
           // An incomplete run sends nothing more.
           if (!message.result.complete) this.settle(id, diodes, fixes, finished);
