@@ -8,6 +8,7 @@ import { join } from 'node:path';
 const LED_RULE = 'led-current-unlimited';
 /** Longest wait for one thing to appear in the workbench (2 shared cores; common practice, no source). */
 const STEP_WAIT_MILLISECONDS = 60_000;
+const QUICK_FIX_ATTEMPTS = 3;
 /** Size of the editor pictures kept for the README (pixels). */
 const README_PICTURE_WIDTH = 860;
 const README_PICTURE_HEIGHT = 420;
@@ -153,9 +154,17 @@ export async function driveWorkbench(context, server, { workspace, artifacts, ne
   let chosen = '';
   const menuShown = await step('Ctrl+. on the LED opens the quick-fix menu', async () => {
     await editorLine(page, 'D1 ').click({ position: { x: 4, y: 5 } });
-    await page.keyboard.press('Control+Period');
     const items = page.locator('.action-widget .monaco-list-row');
-    await items.first().waitFor();
+    // Ctrl+. pressed while the workbench is still computing the line's actions shows
+    // nothing at times (seen 1 run in 10 on a loaded machine): press again.
+    for (let attempt = 1; attempt <= QUICK_FIX_ATTEMPTS; attempt++) {
+      await page.keyboard.press('Control+Period');
+      const shown = await items.first().waitFor({ timeout: attempt < QUICK_FIX_ATTEMPTS ? 10_000 : STEP_WAIT_MILLISECONDS }).then(() => true, () => false);
+      if (shown) break;
+      if (attempt === QUICK_FIX_ATTEMPTS) throw new Error(`no quick-fix menu after ${QUICK_FIX_ATTEMPTS} presses of Ctrl+.`);
+      await page.keyboard.press('Escape');
+      await editorLine(page, 'D1 ').click({ position: { x: 4, y: 5 } });
+    }
     const titles = (await items.allTextContents()).map((title) => title.trim());
     const resistor = titles.find((title) => /resistor/i.test(title));
     const ignore = titles.find((title) => /ignore/i.test(title) && title.includes(LED_RULE) && /line/i.test(title)) ?? titles.find((title) => /ignore/i.test(title) && title.includes(LED_RULE));
