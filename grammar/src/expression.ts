@@ -44,7 +44,9 @@ const expressionTokens: TokenType[] = [
   Separator,
 ];
 
-const expressionLexer = new Lexer(expressionTokens, { positionTracking: 'onlyOffset', ensureOptimizations: true });
+const EXPRESSION_LEXER_CONFIG = { positionTracking: 'onlyOffset', ensureOptimizations: true } as const;
+// Chevrotain's definition checks are a start-up cost; validateExpressionGrammar runs them in a test.
+const expressionLexer = new Lexer(expressionTokens, { ...EXPRESSION_LEXER_CONFIG, skipValidations: true });
 
 type BinaryOp = Extract<Expr, { kind: 'binary' }>['op'];
 
@@ -260,8 +262,9 @@ class ExpressionParser extends EmbeddedActionsParser {
 
 let parser: ExpressionParser | undefined;
 
-/** Builds the expression parser with Chevrotain's grammar validations on (they throw on a bad grammar); for a test. */
+/** Builds the expression lexer and parser with Chevrotain's checks on (they throw on a faulty definition); for a test. */
 export function validateExpressionGrammar(): void {
+  new Lexer(expressionTokens, { ...EXPRESSION_LEXER_CONFIG, skipValidations: false });
   new ExpressionParser(false);
 }
 

@@ -215,5 +215,14 @@ export const tokenTypes: TokenType[] = [
 ];
 
 // One mode: the title line of a top-level file is cut off before lexing (see parser.ts),
-// which spares the lexer its per-token mode handling.
-export const netlistLexer = new Lexer(tokenTypes, { positionTracking: 'onlyOffset', ensureOptimizations: true, skipValidations: false });
+// which spares the lexer its per-token mode handling. Positions are offsets only; lines and
+// columns come from the line index (positions.ts).
+const LEXER_CONFIG = { positionTracking: 'onlyOffset', ensureOptimizations: true } as const;
+
+/** The lexer in use skips Chevrotain's definition checks, a start-up cost; validateLexer runs them in a test. */
+export const netlistLexer = new Lexer(tokenTypes, { ...LEXER_CONFIG, skipValidations: true });
+
+/** Builds the lexer with Chevrotain's definition checks on; throws if the token definitions are faulty. */
+export function validateLexer(): void {
+  new Lexer(tokenTypes, { ...LEXER_CONFIG, skipValidations: false });
+}
