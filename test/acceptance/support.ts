@@ -3,7 +3,7 @@
 // its messages, and the reference engine (ngspice 39) run on the same netlists at a
 // chosen corner. Expected values come from ngspice or from hand formulas in the tests,
 // never from pnlint's own output.
-import { spawnSync } from 'node:child_process';
+import { execFile, spawnSync } from 'node:child_process';
 import { cpSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, join } from 'node:path';
@@ -46,6 +46,21 @@ export function pnlint(args: string[], cwd: string): CliRun {
     timeout: CLI_TIMEOUT_MILLISECONDS,
   });
   return { code: run.status, stdout: run.stdout ?? '', stderr: run.stderr ?? '' };
+}
+
+/** Several CLI runs at once (each in its own process), for the tests that need many. */
+export function pnlintAll(runs: { args: string[]; cwd: string }[]): Promise<CliRun[]> {
+  return Promise.all(
+    runs.map(
+      ({ args, cwd }) =>
+        new Promise<CliRun>((resolve) => {
+          execFile(process.execPath, [LAUNCHER, ...args], { cwd, encoding: 'utf8', env: { ...process.env, NO_COLOR: '1' }, timeout: CLI_TIMEOUT_MILLISECONDS }, (error, stdout, stderr) => {
+            const code = error ? (typeof error.code === 'number' ? error.code : null) : 0;
+            resolve({ code, stdout, stderr });
+          });
+        }),
+    ),
+  );
 }
 
 /** One finding of `pnlint check --format json` (the stable JSON shape of issue 2). */
