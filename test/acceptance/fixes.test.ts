@@ -1,0 +1,185 @@
+// `pnlint check --fix` on copies of the faulty circuits, as an engineer runs it before a
+// review: every applied fix must leave a netlist that still parses, that the reference engine
+// (ngspice 39) still solves, in which the finding is gone and nothing new appears; and the
+// fixed circuit must really be safe by ngspice's numbers, not only by pnlint's.
+import { beforeAll, describe, expect, it } from 'vitest';
+import { execFileSync } from 'node:child_process';
+import { readFileSync, readdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { declareNgspiceGate, runNgspiceOperatingPoint } from '../support/ngspice.js';
+import {
+  DEFAULT_SUPPLY_TOLERANCE,
+  LED_RULE_OF_THUMB_CURRENT,
+  ROOT,
+  alarms,
+  checkJson,
+  copyOfCircuits,
+  isE24,
+  pnlint,
+  readCircuit,
+  referenceDiodeCurrent,
+  referenceSolve,
+  withLines,
+  type CheckReport,
+  type CliRun,
+} from './support.js';
+
+const HIGH = 1 + DEFAULT_SUPPLY_TOLERANCE;
+const LOW = 1 - DEFAULT_SUPPLY_TOLERANCE;
+/** reversed-diode.md: turned around, a diode that carries 100 µA or more carries a plausible current. */
+const PLAUSIBLE_CURRENT = 100e-6;
+/** A blocking diode leaks: well under a microampere for these models at these voltages (ngspice 39 shows nA). */
+const BLOCKING_CURRENT = 1e-6;
+
+/** Each faulty file whose finding has a preferred fix: the rule and element it targets. */
+const FIXABLE: Record<string, { rule: string; element: string }> = {
+  'b01-led-on-rail.cir': { rule: 'led-current-unlimited', element: 'DEYE' },
+  'b02-led-small-resistor.cir': { rule: 'led-current-unlimited', element: 'DTACH' },
+  'b03-led-reversed.cir': { rule: 'reversed-diode', element: 'DRDY' },
+  'b04-led-npn-small-resistor.cir': { rule: 'led-current-unlimited', element: 'DFAULT' },
+  'b05-led-reversed-npn.cir': { rule: 'reversed-diode', element: 'DBUSY' },
+  'b06-clamp-reversed.cir': { rule: 'reversed-diode', element: 'DCLAMP' },
+  'b07-freewheel-reversed.cir': { rule: 'reversed-diode', element: 'DFLY' },
+  'b10-zener-starved-load.cir': { rule: 'zener-underbiased', element: 'DREF' },
+  'b11-zener-starved-rail.cir': { rule: 'zener-underbiased', element: 'DBIAS' },
+  'b12-zener-forward.cir': { rule: 'zener-forward', element: 'DREF' },
+};
+
+let folder: string;
+let files: string[];
+let before: CheckReport;
+let fixRun: CliRun;
+let after: CheckReport;
+beforeAll(() => {
+  execFileSync(process.execPath, [join(ROOT, 'node_modules/typescript/bin/tsc'), '-b'], { cwd: ROOT, stdio: 'ignore' });
+  folder = copyOfCircuits('bad');
+  files = readdirSync(folder).filter((name) => name.endsWith('.cir'));
+  before = checkJson(files, folder);
+  fixRun = pnlint(['check', ...files, '--fix'], folder);
+  after = checkJson(files, folder);
+});
+
+function fixedText(file: string): string {
+  return readFileSync(join(folder, file), 'utf8');
+}
+
+/** The lines of the fixed file that are not in the original, in order. */
+function changedLines(file: string): string[] {
+  const original = new Set(readCircuit(`bad/${file}`).split('\n'));
+  return fixedText(file)
+    .split('\n')
+    .filter((line) => !original.has(line));
+}
+
+/** The value of resistor `name` in the fixed file, in ohms (plain numbers or k only, as the fixes write them). */
+function resistorValue(file: string, name: string): number {
+  const line = fixedText(file)
+    .split('\n')
+    .find((candidate) => candidate.split(/\s+/)[0] === name);
+  if (!line) throw new Error(`${file} has no resistor ${name}`);
+  const value = line.split(/\s+/)[3];
+  const match = /^(\d+(?:\.\d+)?)(k|meg)?$/i.exec(value);
+  if (!match) throw new Error(`${file}: cannot read the value of ${line}`);
+  return Number(match[1]) * (match[2] ? (match[2].toLowerCase() === 'k' ? 1e3 : 1e6) : 1);
+}
+
+describe('pnlint check --fix applies the preferred fixes and only those', () => {
+  it('says which fixes it applied, one per fixable file', () => {
+    for (const file of Object.keys(FIXABLE)) expect(fixRun.stderr).toContain(`fixed ${join(folder, file)}`);
+  });
+
+  it.each(Object.keys(FIXABLE))('%s: the finding is gone, nothing new at warning or error, edits minimal', (file) => {
+    const { rule, element } = FIXABLE[file];
+    expect(before.byFile.get(file)!.some((f) => f.rule === rule && f.element === element)).toBe(true);
+    const remaining = after.byFile.get(file)!;
+    expect(remaining.filter((f) => f.rule === rule && f.element === element)).toEqual([]);
+    const earlier = new Set(before.byFile.get(file)!.map((f) => `${f.rule} ${f.element}`));
+    expect(alarms(remaining).filter((f) => !earlier.has(`${f.rule} ${f.element}`))).toEqual([]);
+    // Still parses: no syntax or netlist finding after the edit.
+    expect(remaining.filter((f) => f.rule === 'syntax' || f.rule === 'netlist')).toEqual([]);
+    // Minimal: one changed line, or one changed and one inserted (a new series resistor).
+    expect(changedLines(file).length).toBeGreaterThanOrEqual(1);
+    expect(changedLines(file).length).toBeLessThanOrEqual(2);
+  });
+
+  it('leaves the files with no preferred fix byte for byte as they were', () => {
+    for (const file of files.filter((name) => !(name in FIXABLE))) expect(fixedText(file), file).toBe(readCircuit(`bad/${file}`));
+  });
+});
+
+const ngspice = declareNgspiceGate();
+
+describe.runIf(ngspice)('the fixed circuits by the reference engine', () => {
+  it.each(Object.keys(FIXABLE))('%s: ngspice 39 still solves it', (file) => {
+    const run = runNgspiceOperatingPoint(fixedText(file));
+    expect(run.ok, `${run.failure}\n${run.deck}`).toBe(true);
+  });
+
+  it('b01: the inserted resistor is an E24 value and holds the LED under 20 mA at 5.25 V', () => {
+    const inserted = changedLines('b01-led-on-rail.cir').find((line) => /^R/i.test(line))!;
+    expect(inserted).toBeDefined();
+    expect(isE24(resistorValue('b01-led-on-rail.cir', inserted.split(/\s+/)[0]))).toBe(true); // IEC 60063
+    const current = referenceDiodeCurrent(fixedText('b01-led-on-rail.cir'), 'DEYE', { V5: `V5 v5 0 DC ${5 * HIGH}` });
+    expect(current).toBeLessThanOrEqual(LED_RULE_OF_THUMB_CURRENT); // rule of thumb, common practice
+    expect(current).toBeGreaterThan(PLAUSIBLE_CURRENT); // and still lights
+  });
+
+  it('b02: the new RTACH is E24 and the LED and the resistor are inside their ratings at 12.6 V', () => {
+    const file = 'b02-led-small-resistor.cir';
+    const value = resistorValue(file, 'RTACH');
+    expect(isE24(value)).toBe(true); // IEC 60063
+    const netlist = withLines(fixedText(file), { V12: 'V12 v12 0 DC 12.6' });
+    const nodes = referenceSolve(netlist, ['v(v12)', 'v(anode)']);
+    const current = (nodes.get('v(v12)')! - nodes.get('v(anode)')!) / value;
+    expect(current).toBeLessThanOrEqual(LED_RULE_OF_THUMB_CURRENT);
+    expect(current * current * value).toBeLessThanOrEqual(0.25); // default resistor power, settings.ts (common practice)
+  });
+
+  it('b04: the new RFAULT is E24 and the LED stays under 20 mA with both supplies high', () => {
+    const file = 'b04-led-npn-small-resistor.cir';
+    expect(isE24(resistorValue(file, 'RFAULT'))).toBe(true); // IEC 60063
+    const current = referenceDiodeCurrent(fixedText(file), 'DFAULT', { V5: `V5 v5 0 DC ${5 * HIGH}`, VGPIO: `VGPIO gpio 0 DC ${3.3 * HIGH}` });
+    expect(current).toBeLessThanOrEqual(LED_RULE_OF_THUMB_CURRENT);
+  });
+
+  it('b03 and b05: the LEDs turned around now conduct at nominal values', () => {
+    expect(referenceDiodeCurrent(fixedText('b03-led-reversed.cir'), 'DRDY')).toBeGreaterThan(PLAUSIBLE_CURRENT);
+    expect(referenceDiodeCurrent(fixedText('b05-led-reversed-npn.cir'), 'DBUSY')).toBeGreaterThan(PLAUSIBLE_CURRENT);
+  });
+
+  it('b06 and b07: the clamp and the freewheel diode turned around now block at the high corner', () => {
+    expect(Math.abs(referenceDiodeCurrent(fixedText('b06-clamp-reversed.cir'), 'DCLAMP', { V3V3: `V3V3 v3v3 0 DC ${3.3 * HIGH}` }))).toBeLessThan(BLOCKING_CURRENT);
+    const freewheel = referenceDiodeCurrent(fixedText('b07-freewheel-reversed.cir'), 'DFLY', {
+      V24: `V24 v24 0 DC ${24 * HIGH}`,
+      VCTRL: `VCTRL ctrl 0 DC ${3.3 * HIGH}`,
+    });
+    expect(Math.abs(freewheel)).toBeLessThan(BLOCKING_CURRENT);
+  });
+
+  it('b10: the new feed resistor is inside the textbook window and the zener holds 1 mA at 7.5 V', () => {
+    const file = 'b10-zener-starved-load.cir';
+    const value = resistorValue(file, 'RFEED');
+    // Textbook zener window: Rmax = (Vs,min − Vz)/(Iz,min + IL,max), Rmin = (Vs,max − Vz)/Iz,max,
+    // with Iz,max = PD/VZ = 0.5 W / 5.1 V (the directive's ratings).
+    const rmax = (7.5 - 5.1) / (1e-3 + 5.1 / 680);
+    const rmin = (9.6 - 5.1) / (0.5 / 5.1);
+    expect(value).toBeLessThanOrEqual(rmax);
+    expect(value).toBeGreaterThanOrEqual(rmin);
+    // ngspice 39 at the low corner: the zener line is anode first, so its reverse current is minus the probe.
+    expect(-referenceDiodeCurrent(fixedText(file), 'DREF', { VBAT: 'VBAT vbat 0 DC 7.5' })).toBeGreaterThanOrEqual(1e-3);
+  });
+
+  it('b11: the new bias resistor is under the window top and the zener holds 1 mA at 4.75 V', () => {
+    const file = 'b11-zener-starved-rail.cir';
+    const rmax = (5 * LOW - 3.3) / (1e-3 + 3.3 / 4700); // textbook zener window, as above
+    expect(resistorValue(file, 'RBIAS')).toBeLessThanOrEqual(rmax);
+    expect(-referenceDiodeCurrent(fixedText(file), 'DBIAS', { V5: `V5 v5 0 DC ${5 * LOW}` })).toBeGreaterThanOrEqual(1e-3);
+  });
+
+  it('b12: the zener turned around regulates near its 5.1 V', () => {
+    const node = referenceSolve(fixedText('b12-zener-forward.cir'), ['v(ref)']).get('v(ref)')!;
+    // VZ 5.1 V (the model's BV) plus the drop on its 5 Ω RS at a few mA.
+    expect(node).toBeGreaterThan(5.0);
+    expect(node).toBeLessThan(5.2);
+  });
+});
