@@ -201,6 +201,10 @@ async function main() {
   const passed = suite.exitCode === 0 && ui.failures.length === 0;
   for (const failure of ui.failures) log(`FAILED: workbench: ${failure}`);
   log(`extension-host suite: ${suite.exitCode === 0 ? 'passed' : `FAILED (exit ${suite.exitCode})`}; workbench steps: ${ui.passed.length} passed, ${ui.failures.length} failed; ${pendingSteps.length} pending; ${seconds} s`);
+  // One plain closing line that counts both parts (Mocha's own lines are above).
+  const count = (word) => Number(suite.lines.map((line) => new RegExp(`^\\s*(\\d+) ${word}\\b`).exec(line)?.[1]).find(Boolean) ?? 0);
+  const failedCount = count('failing') + ui.failures.length + (suite.exitCode !== 0 && count('failing') === 0 ? 1 : 0);
+  process.stdout.write(`editor: ${count('passing') + ui.passed.length} passed, ${failedCount} failed, ${count('pending') + ui.pending.length} skipped\n`);
   removeRunFolder = !options.has('--keep') && passed;
   if (!removeRunFolder) log(`run folder kept: ${runFolder}`);
   return passed ? 0 : 1;
