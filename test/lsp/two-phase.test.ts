@@ -41,6 +41,9 @@ const codeActionsFor = (client: TestClient, uri: string, diagnostics: Diagnostic
 /** Code-action requests to make before giving up on fixes that a loaded machine builds slowly (each waits up to 2 s). */
 const ATTEMPTS = 5;
 
+/** How long after the findings the fixes are surely being built, and not yet done (ours; see the test). */
+const FIXES_STARTED_MILLISECONDS = 500;
+
 /** The ignore actions for one line (not the whole-file one). */
 const lineIgnores = (actions: CodeAction[]) => actions.filter((a) => a.title.startsWith('Ignore ') && !a.title.includes('whole file'));
 
@@ -109,9 +112,9 @@ describe('two-phase checking', () => {
     const text = panelWithBareLeds(600, 6);
     client.open(uri, text);
     await client.diagnostics(uri, { version: 1 });
-    // A moment for the worker to start on version 1's fixes (they take a second or more), then
-    // rename one bare LED while they are being built (its finding stays, under the new name).
-    await new Promise((resolve) => setTimeout(resolve, 300));
+    // A moment for the worker to start on version 1's fixes (they take a second or more, within
+    // their 1.5 s budget), then rename one bare LED while they are being built (its finding stays, under the new name).
+    await new Promise((resolve) => setTimeout(resolve, FIXES_STARTED_MILLISECONDS));
     const line = text.split('\n').findIndex((l) => l.startsWith('DBARE1 '));
     client.change(uri, 2, [{ range: { start: { line, character: 0 }, end: { line, character: 6 } }, text: 'DLONE' }]);
     const second = await client.diagnostics(uri, { version: 2 });
