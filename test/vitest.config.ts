@@ -14,6 +14,8 @@ export default defineConfig({
     include: ['test/**/*.test.ts'],
     exclude: ['**/node_modules/**', 'test/editor/**'],
     testTimeout: 60_000,
+    // Suites that spawn the built server or ngspice set up in hooks; this machine is shared and slow at times.
+    hookTimeout: 60_000,
     pool: 'forks',
     maxWorkers: 2,
   },

@@ -1,8 +1,8 @@
-// The command line as a user runs it: the built `pnlint` in a child process, on files
+// The command line as a user runs it: the built `pnlint` (npm test builds first) in a child process, on files
 // in a temporary folder. Expected values come from the netlists written here and the
 // facts named beside each check, never from pnlint's own output.
 import { describe, expect, it, beforeAll } from 'vitest';
-import { execFileSync, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync, chmodSync, existsSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -27,7 +27,6 @@ const LIMITED_LED = ['status lamp with its resistor', 'V1 vcc 0 DC 5', 'R1 vcc a
 
 let folder: string;
 beforeAll(() => {
-  execFileSync(process.execPath, [join(root, 'node_modules/typescript/bin/tsc'), '-b'], { cwd: root, stdio: 'ignore' });
   folder = mkdtempSync(join(tmpdir(), 'pnlint-cli-'));
   writeFileSync(join(folder, 'unlimited.cir'), UNLIMITED_LED);
   writeFileSync(join(folder, 'limited.cir'), LIMITED_LED);
