@@ -5,25 +5,39 @@ import type { Finding, Fix } from '../findings.js';
 import { formatQuantity } from '../units.js';
 import { diodeExtremes, elementNamed } from './readings.js';
 import { nodeFields, replaceEdit } from './source-text.js';
+import type { FixCandidate } from './together.js';
 import type { FixSession } from './verify.js';
 
 type FlipRequest = Extract<FixRequest, { kind: 'flip-diode' }>;
 
-export function flipDiodeFixes(session: FixSession, request: FlipRequest, finding: Finding): Fix[] {
+/** The flip's edits, not yet re-checked; undefined when the diode's node words cannot be found. */
+export function flipDiodeCandidate(session: FixSession, request: FlipRequest, finding: Finding): FixCandidate | undefined {
   const diode = elementNamed(session.circuit, request.diode);
-  if (!diode || diode.type !== 'D') return [];
+  if (!diode || diode.type !== 'D') return undefined;
   const located = session.files.statementOf(diode);
   const nodes = located && nodeFields(located.statement, 2);
-  if (!located || !nodes) return [];
+  if (!located || !nodes) return undefined;
   const [anode, cathode] = nodes as [(typeof nodes)[0], (typeof nodes)[0]];
   const edits = [replaceEdit(located.uri, anode.range, cathode.text), replaceEdit(located.uri, cathode.range, anode.text)];
-  const verdict = session.verify(edits, finding);
-  if (!verdict.ok) return [];
-  const after = diodeExtremes(verdict.verified, diode.name);
-  const then = !after
-    ? ''
-    : after.forwardCurrent >= CONDUCTION_THRESHOLD
-      ? `; it then carries ${formatQuantity(after.forwardCurrent, 'A')}`
-      : `; it then blocks ${formatQuantity(after.reverseVoltage, 'V')}`;
-  return [{ title: `Turn ${diode.name} around (anode to ${cathode.text}, cathode to ${anode.text}${then})`, preferred: true, edits }];
+  return {
+    element: diode,
+    target: finding,
+    edits,
+    titled: (verified) => {
+      const after = diodeExtremes(verified, diode.name);
+      const then = !after
+        ? ''
+        : after.forwardCurrent >= CONDUCTION_THRESHOLD
+          ? `; it then carries ${formatQuantity(after.forwardCurrent, 'A')}`
+          : `; it then blocks ${formatQuantity(after.reverseVoltage, 'V')}`;
+      return { title: `Turn ${diode.name} around (anode to ${cathode.text}, cathode to ${anode.text}${then})`, preferred: true, edits };
+    },
+  };
+}
+
+export function flipDiodeFixes(session: FixSession, request: FlipRequest, finding: Finding): Fix[] {
+  const candidate = flipDiodeCandidate(session, request, finding);
+  if (!candidate) return [];
+  const verdict = session.verify(candidate.edits, finding);
+  return verdict.ok ? [candidate.titled(verdict.verified)] : [];
 }

@@ -8,6 +8,7 @@ import { formatQuantity } from '../units.js';
 import { leafName } from './names.js';
 import { diodeExtremes, elementNamed } from './readings.js';
 import { linesAfter, nodeFields } from './source-text.js';
+import type { FixCandidate } from './together.js';
 import type { FixSession } from './verify.js';
 
 type GuardRequest = Extract<FixRequest, { kind: 'anti-parallel-diode' }>;
@@ -21,21 +22,34 @@ export const GUARD_DIODE_PARAMETERS = 'IS=4n N=1.9 RS=0.6 BV=100 IBV=100n';
 /** Words in a model name that the checks read as a hint of the diode's kind (checks/classify.ts): kept out of the guard's model name. */
 const KIND_HINTS = /led|zen|rect|bridge|schottky/gi;
 
-export function guardDiodeFixes(session: FixSession, request: GuardRequest, finding: Finding): Fix[] {
+/** The guard's edits, not yet re-checked; undefined when the LED's node words cannot be found. */
+export function guardDiodeCandidate(session: FixSession, request: GuardRequest, finding: Finding): FixCandidate | undefined {
   const led = elementNamed(session.circuit, request.diode);
-  if (!led || led.type !== 'D') return [];
+  if (!led || led.type !== 'D') return undefined;
   const located = session.files.statementOf(led);
   const nodes = located && nodeFields(located.statement, 2);
-  if (!located || !nodes) return [];
+  if (!located || !nodes) return undefined;
   const [anode, cathode] = nodes as [(typeof nodes)[0], (typeof nodes)[0]];
   const names = session.names.copy();
   const leaf = leafName(led.name);
   const guard = names.fresh('element', `${leaf}_GUARD`);
   const model = names.fresh('model', `SI_GUARD_${leaf.replace(KIND_HINTS, (word) => word[0]!)}`);
   const edits = [linesAfter(located, [`${guard} ${cathode.text} ${anode.text} ${model}`, `.model ${model} D(${GUARD_DIODE_PARAMETERS})`])];
-  const verdict = session.verify(edits, finding);
-  if (!verdict.ok) return [];
-  const after = diodeExtremes(verdict.verified, led.name);
-  const numbers = after ? ` (LED reverse voltage ${formatQuantity(request.reverseVoltage, 'V')} → ${formatQuantity(Math.max(after.reverseVoltage, 0), 'V')})` : '';
-  return [{ title: `Add anti-parallel diode ${guard} across ${led.name}${numbers}`, preferred: true, edits }];
+  return {
+    element: led,
+    target: finding,
+    edits,
+    titled: (verified) => {
+      const after = diodeExtremes(verified, led.name);
+      const numbers = after ? ` (LED reverse voltage ${formatQuantity(request.reverseVoltage, 'V')} → ${formatQuantity(Math.max(after.reverseVoltage, 0), 'V')})` : '';
+      return { title: `Add anti-parallel diode ${guard} across ${led.name}${numbers}`, preferred: true, edits };
+    },
+  };
+}
+
+export function guardDiodeFixes(session: FixSession, request: GuardRequest, finding: Finding): Fix[] {
+  const candidate = guardDiodeCandidate(session, request, finding);
+  if (!candidate) return [];
+  const verdict = session.verify(candidate.edits, finding);
+  return verdict.ok ? [candidate.titled(verdict.verified)] : [];
 }

@@ -21,7 +21,11 @@ export function instancePrefix(name: string): string {
 }
 
 export class NameRegistry {
-  private constructor(private readonly taken: Record<Namespace, Set<string>>) {}
+  /** `inherited`: the registry this one was copied from, read through rather than duplicated (it takes no names after it is copied). */
+  private constructor(
+    private readonly taken: Record<Namespace, Set<string>>,
+    private readonly inherited?: NameRegistry,
+  ) {}
 
   static of(circuit: Circuit, files: SourceFiles): NameRegistry {
     const registry = new NameRegistry({ element: new Set(), node: new Set(), model: new Set() });
@@ -54,17 +58,25 @@ export class NameRegistry {
     return registry;
   }
 
-  /** A copy to draw from, so that each fix picks its names against the original circuit alone. */
+  /**
+   * A copy to draw from, so that each fix picks its names against the original circuit alone.
+   * A layer over this registry, not a duplicate of it: a board's thousands of fixes each take
+   * a copy of thousands of names.
+   */
   copy(): NameRegistry {
-    return new NameRegistry({ element: new Set(this.taken.element), node: new Set(this.taken.node), model: new Set(this.taken.model) });
+    return new NameRegistry({ element: new Set(), node: new Set(), model: new Set() }, this);
   }
 
   /** `base`, else `base_2`, `base_3`, …: the first that no name of its kind has; it is then taken. */
   fresh(namespace: Namespace, base: string): string {
     let name = base;
-    for (let index = 2; this.taken[namespace].has(name.toLowerCase()); index++) name = `${base}_${index}`;
+    for (let index = 2; this.has(namespace, name.toLowerCase()); index++) name = `${base}_${index}`;
     this.take(namespace, name);
     return name;
+  }
+
+  private has(namespace: Namespace, lowerCased: string): boolean {
+    return this.taken[namespace].has(lowerCased) || (this.inherited?.has(namespace, lowerCased) ?? false);
   }
 
   private take(namespace: Namespace, name: string): void {

@@ -9,14 +9,16 @@ import type { Circuit, FileReader } from '../netlist/circuit.js';
 import type { WorkspaceConfig } from '../config.js';
 import type { Finding, Fix } from '../findings.js';
 import type { Settings } from '../settings.js';
-import { flipDiodeFixes } from './flip-diode.js';
-import { guardDiodeFixes } from './guard-diode.js';
+import { flipDiodeCandidate, flipDiodeFixes } from './flip-diode.js';
+import { guardDiodeCandidate, guardDiodeFixes } from './guard-diode.js';
 import { ignoreFix, verifiedIgnore, verifiedIgnoreFixes } from './ignore.js';
 import { currentLimitFixes } from './series-resistor.js';
+import { verifyIndependent, type FixCandidate } from './together.js';
 import { FixSession, type FixOptions, type FixStatistics } from './verify.js';
 import { zenerWindowFixes } from './zener-resistor.js';
 
-const SEVERITY_ORDER: Readonly<Record<Finding['severity'], number>> = { error: 0, warning: 1, info: 2 };
+/** Most urgent first. */
+const SEVERITIES: readonly Finding['severity'][] = ['error', 'warning', 'info'];
 
 export interface RequestedFixes {
   fixes: Fix[];
@@ -115,17 +117,44 @@ export function attachVerifiedFixes(
     requests.set(finding, list);
   }
   // Errors first, so that a spent budget leaves the lesser findings without fixes rather than the worst.
-  const byUrgency = [...check.findings].sort((a, b) => SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
   const built = new Map<Finding, RequestedFixes[]>();
-  for (const finding of byUrgency) {
-    built.set(finding, (requests.get(finding) ?? []).map((request) => fixesForRequest(session, request, finding, check.cornerPlans)));
+  for (const severity of SEVERITIES) {
+    // Flips and guard diodes first: built, then verified together where they cannot affect
+    // each other (together.ts), a few re-checks for any number of them. Then the requests
+    // whose values are searched re-check by re-check, one at a time.
+    const waiting: { slot: RequestedFixes; candidate: FixCandidate }[] = [];
+    const searched: { slot: RequestedFixes; request: FixRequest; finding: Finding }[] = [];
+    for (const finding of check.findings) {
+      if (finding.severity !== severity) continue;
+      const slots = (requests.get(finding) ?? []).map((request) => {
+        const slot: RequestedFixes = { fixes: [] };
+        if (request.kind !== 'flip-diode' && request.kind !== 'anti-parallel-diode') searched.push({ slot, request, finding });
+        else if (!session.canVerify()) session.statistics.skipped++;
+        else {
+          const candidate = request.kind === 'flip-diode' ? flipDiodeCandidate(session, request, finding) : guardDiodeCandidate(session, request, finding);
+          if (candidate) waiting.push({ slot, candidate });
+        }
+        return slot;
+      });
+      built.set(finding, slots);
+    }
+    const verdicts = verifyIndependent(
+      session,
+      waiting.map((each) => each.candidate),
+    );
+    waiting.forEach(({ slot, candidate }, index) => {
+      const verdict = verdicts[index]!;
+      if (verdict.ok) slot.fixes.push(candidate.titled(verdict.verified));
+    });
+    for (const { slot, request, finding } of searched) Object.assign(slot, fixesForRequest(session, request, finding, check.cornerPlans));
   }
   const findings = check.findings.map((finding) => {
     const results = built.get(finding) ?? [];
     const message = finding.message + results.map((result) => result.note ?? '').join('');
     return { ...finding, message, fixes: [...finding.fixes, ...results.flatMap((result) => result.fixes)] };
   });
-  const ignores = verifiedIgnoreFixes(session, check.findings);
+  // The ignore fixes need no re-simulation (one elaboration for all): past the budget too, but not once cancelled.
+  const ignores = options.cancellation?.isCancellationRequested ? [] : verifiedIgnoreFixes(session, check.findings);
   return {
     findings: findings.map((finding, index) => {
       const ignore = ignores[index];

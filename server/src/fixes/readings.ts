@@ -2,14 +2,41 @@
 // what the re-simulation found, not what the value was aimed at), and a few lookups that
 // every fix shares.
 import type { Circuit, Element } from '../netlist/circuit.js';
-import type { CornerPlan } from '../checks/index.js';
+import type { CheckResult, CornerPlan, DiodeReport } from '../checks/index.js';
 import type { SolveOptions } from '../sim/types.js';
 import { nodeVoltage } from './probes.js';
 import type { FixSession, Verified } from './verify.js';
 
+/** Elements by lower-cased name, the first of each name (as a search from the top finds it), built once per circuit. */
+const elementsByName = new WeakMap<Circuit, Map<string, Element>>();
+
 export function elementNamed(circuit: Circuit, name: string): Element | undefined {
-  const key = name.toLowerCase();
-  return circuit.elements.find((element) => element.name.toLowerCase() === key);
+  let byName = elementsByName.get(circuit);
+  if (!byName) {
+    byName = new Map();
+    for (const element of circuit.elements) {
+      const key = element.name.toLowerCase();
+      if (!byName.has(key)) byName.set(key, element);
+    }
+    elementsByName.set(circuit, byName);
+  }
+  return byName.get(name.toLowerCase());
+}
+
+/** A re-check's diode reports by lower-cased element name, built once per check (many fixes may share one re-check). */
+const diodeReportsByName = new WeakMap<CheckResult, Map<string, DiodeReport>>();
+
+function diodeReportOf(verified: Verified, name: string): DiodeReport | undefined {
+  let byName = diodeReportsByName.get(verified.check);
+  if (!byName) {
+    byName = new Map();
+    for (const report of verified.check.diodes) {
+      const key = report.element.toLowerCase();
+      if (!byName.has(key)) byName.set(key, report);
+    }
+    diodeReportsByName.set(verified.check, byName);
+  }
+  return byName.get(name.toLowerCase());
 }
 
 /** The factor a corner applies to an element's value (resistor tolerance corners). */
@@ -32,7 +59,7 @@ export function solveOptionsOf(session: FixSession): SolveOptions {
 
 /** A diode's largest forward current and largest reverse voltage over the re-check's corners. */
 export function diodeExtremes(verified: Verified, name: string): { forwardCurrent: number; reverseVoltage: number } | undefined {
-  const report = verified.check.diodes.find((diode) => diode.element.toLowerCase() === name.toLowerCase());
+  const report = diodeReportOf(verified, name);
   if (!report) return undefined;
   const points = report.corners.flatMap((corner) => (corner.point ? [corner.point] : []));
   if (points.length === 0) return undefined;
@@ -44,7 +71,7 @@ export function diodeExtremes(verified: Verified, name: string): { forwardCurren
 
 /** A diode's least and largest reverse current over the re-check's corners (a zener's range). */
 export function reverseCurrentRange(verified: Verified, name: string): { least: number; largest: number } | undefined {
-  const report = verified.check.diodes.find((diode) => diode.element.toLowerCase() === name.toLowerCase());
+  const report = diodeReportOf(verified, name);
   const currents = (report?.corners ?? []).flatMap((corner) => (corner.point ? [-corner.point.current] : []));
   if (currents.length === 0) return undefined;
   return { least: Math.min(...currents), largest: Math.max(...currents) };

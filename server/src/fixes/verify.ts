@@ -60,6 +60,7 @@ export class FixSession {
   private readonly baseline: KnownFindings;
   private readonly deadline: number;
   private readonly maximumVerifications: number;
+  private originalDirectiveProblems: number | undefined;
 
   constructor(
     readonly circuit: Circuit,
@@ -104,23 +105,57 @@ export class FixSession {
 
   /** Applies the edits to copies, re-checks, and says whether `target` is gone with nothing new. */
   verify(edits: readonly TextEdit[], target: Finding): Verdict {
-    if (!this.canVerify()) {
-      this.statistics.skipped++;
-      return { ok: false, reason: 'budget' };
+    const rechecked = this.recheck(edits);
+    if (!rechecked.ok) {
+      if (rechecked.reason === 'budget') this.statistics.skipped++;
+      else this.statistics.rejected++;
+      return rechecked;
     }
+    const verified = rechecked.verified;
+    if (this.remains(verified, target)) return this.reject('target-remains', verified);
+    if (this.bringsNew(verified)) return this.reject('new-finding', verified);
+    return { ok: true, verified };
+  }
+
+  /**
+   * One re-check: the edits applied to copies, the copy elaborated and checked in full (it
+   * counts as one verification, whatever number of fixes it carries). `budget` when the
+   * budget was spent before it could start, or the analysis was cancelled while it ran.
+   */
+  recheck(edits: readonly TextEdit[]): { ok: true; verified: Verified } | { ok: false; reason: 'edit-failed' | 'budget' } {
+    if (!this.canVerify()) return { ok: false, reason: 'budget' };
     const started = performance.now();
     try {
       this.statistics.verifications++;
       const circuit = this.elaborateEdited(edits);
-      if (!circuit) return this.reject('edit-failed');
+      if (!circuit) return { ok: false, reason: 'edit-failed' };
       const check = checkCircuit(circuit, this.settings, this.config, this.options.cancellation ? { cancellation: this.options.cancellation } : {});
+      // A cancelled check is incomplete: its missing findings prove nothing.
       if (this.options.cancellation?.isCancellationRequested) return { ok: false, reason: 'budget' };
-      if (check.findings.some((finding) => sameProblem(finding, target))) return this.reject('target-remains', { circuit, check });
-      if (this.baseline.anyNew(check.findings, circuit)) return this.reject('new-finding', { circuit, check });
       return { ok: true, verified: { circuit, check } };
     } finally {
       this.statistics.milliseconds += performance.now() - started;
     }
+  }
+
+  /** Whether the re-check still reports the target's problem. */
+  remains(verified: Verified, target: Finding): boolean {
+    return verified.check.findings.some((finding) => sameProblem(finding, target));
+  }
+
+  /** `remains` for many targets judged against one re-check: its findings indexed once. */
+  remainsAmong(verified: Verified): (target: Finding) => boolean {
+    const problems = new Set<string>();
+    for (const finding of verified.check.findings) {
+      if (finding.element !== undefined) problems.add(elementProblem(finding.rule, finding.element));
+      problems.add(findingKey(finding));
+    }
+    return (target) => problems.has(target.element !== undefined ? elementProblem(target.rule, target.element) : findingKey(target));
+  }
+
+  /** Whether the re-check reports anything the original check did not. */
+  bringsNew(verified: Verified): boolean {
+    return this.baseline.anyNew(verified.check.findings, verified.circuit);
   }
 
   /**
@@ -131,11 +166,15 @@ export class FixSession {
     const circuit = this.elaborateEdited(edits);
     if (!circuit) return { suppressed: findings.map(() => false), directiveProblems: true };
     const directives = readDirectives(circuit);
-    const directiveProblems = directives.findings.length > readDirectives(this.circuit).findings.length;
-    return { suppressed: findings.map((finding) => applySuppressions([finding], circuit, directives, this.config).length === 0), directiveProblems };
+    this.originalDirectiveProblems ??= readDirectives(this.circuit).findings.length;
+    const directiveProblems = directives.findings.length > this.originalDirectiveProblems;
+    // One pass over all of them: applySuppressions keeps what no directive silences.
+    const kept = new Set(applySuppressions([...findings], circuit, directives, this.config));
+    return { suppressed: findings.map((finding) => !kept.has(finding)), directiveProblems };
   }
 
-  private reject(reason: 'target-remains' | 'new-finding' | 'edit-failed', rechecked?: Verified): Verdict {
+  /** Counts a candidate fix that its re-check turned down. */
+  reject(reason: 'target-remains' | 'new-finding' | 'edit-failed', rechecked?: Verified): Verdict {
     this.statistics.rejected++;
     return rechecked ? { ok: false, reason, rechecked } : { ok: false, reason };
   }
@@ -147,6 +186,9 @@ export function sameProblem(finding: Finding, target: Finding): boolean {
   if (target.element !== undefined) return finding.element !== undefined && finding.element.toLowerCase() === target.element.toLowerCase();
   return findingKey(finding) === findingKey(target);
 }
+
+/** The key `sameProblem` compares for a target about an element (`|` is in no rule id). */
+const elementProblem = (rule: string, element: string) => `${rule}|element|${element.toLowerCase()}`;
 
 /**
  * What identifies a finding across an edit: its rule, element and severity; a finding with no
