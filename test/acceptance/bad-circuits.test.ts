@@ -12,6 +12,7 @@ import {
   DEFAULT_SUPPLY_TOLERANCE,
   LED_RULE_OF_THUMB_CURRENT,
   ROOT,
+  SETUP_TIMEOUT_MILLISECONDS,
   checkJson,
   near,
   quantityAfter,
@@ -31,7 +32,7 @@ let report: CheckReport;
 beforeAll(() => {
   execFileSync(process.execPath, [join(ROOT, 'node_modules/typescript/bin/tsc'), '-b'], { cwd: ROOT, stdio: 'ignore' });
   report = checkJson(readdirSync(BAD).filter((name) => name.endsWith('.cir')), BAD);
-});
+}, SETUP_TIMEOUT_MILLISECONDS);
 
 /** The one finding of `rule` in `file`, which must exist. */
 function finding(file: string, rule: string, element?: string): JsonFinding {

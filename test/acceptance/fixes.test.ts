@@ -11,6 +11,7 @@ import {
   DEFAULT_SUPPLY_TOLERANCE,
   LED_RULE_OF_THUMB_CURRENT,
   ROOT,
+  SETUP_TIMEOUT_MILLISECONDS,
   alarms,
   checkJson,
   copyOfCircuits,
@@ -57,7 +58,7 @@ beforeAll(() => {
   before = checkJson(files, folder);
   fixRun = pnlint(['check', ...files, '--fix'], folder);
   after = checkJson(files, folder);
-});
+}, SETUP_TIMEOUT_MILLISECONDS);
 
 function fixedText(file: string): string {
   return readFileSync(join(folder, file), 'utf8');

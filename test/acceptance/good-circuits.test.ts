@@ -12,6 +12,7 @@ import {
   CIRCUITS,
   LED_RULE_OF_THUMB_CURRENT,
   ROOT,
+  SETUP_TIMEOUT_MILLISECONDS,
   alarms,
   checkJson,
   near,
@@ -76,7 +77,7 @@ beforeAll(async () => {
     if (run.code !== 0) throw new Error(`pnlint op ${files[index]} exited ${run.code}: ${run.stderr}`);
     operatingPoints.set(files[index], JSON.parse(run.stdout) as OperatingPointJson);
   });
-});
+}, SETUP_TIMEOUT_MILLISECONDS);
 
 describe('no false alarm on a correct design', () => {
   it('exits 0 on the whole good set (product.md: 0 when nothing is at error)', () => {

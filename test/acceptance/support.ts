@@ -14,6 +14,12 @@ export const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 export const CIRCUITS = join(ROOT, 'test/acceptance/circuits');
 const LAUNCHER = join(ROOT, 'server/bin/pnlint.js');
 
+/**
+ * The setup of each file (a `tsc -b`, then the CLI runs) may take this long on a loaded
+ * 2-core machine: the default 10 s hook timeout was seen to expire (the build alone took 22 s).
+ */
+export const SETUP_TIMEOUT_MILLISECONDS = 180_000;
+
 /** A CLI run is killed after this: nothing may hang. */
 const CLI_TIMEOUT_MILLISECONDS = 60_000;
 
