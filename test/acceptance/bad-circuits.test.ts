@@ -3,7 +3,6 @@
 // the reference engine (ngspice 39) solved at the same corner, or with the textbook formula
 // named beside the check. All files are checked by one run of the built CLI.
 import { beforeAll, describe, expect, it } from 'vitest';
-import { execFileSync } from 'node:child_process';
 import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { declareNgspiceGate } from '../support/ngspice.js';
@@ -11,7 +10,6 @@ import {
   CIRCUITS,
   DEFAULT_SUPPLY_TOLERANCE,
   LED_RULE_OF_THUMB_CURRENT,
-  ROOT,
   SETUP_TIMEOUT_MILLISECONDS,
   checkJson,
   near,
@@ -30,7 +28,6 @@ const LOW = 1 - DEFAULT_SUPPLY_TOLERANCE;
 
 let report: CheckReport;
 beforeAll(() => {
-  execFileSync(process.execPath, [join(ROOT, 'node_modules/typescript/bin/tsc'), '-b'], { cwd: ROOT, stdio: 'ignore' });
   report = checkJson(readdirSync(BAD).filter((name) => name.endsWith('.cir')), BAD);
 }, SETUP_TIMEOUT_MILLISECONDS);
 

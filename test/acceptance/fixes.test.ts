@@ -3,14 +3,12 @@
 // (ngspice 39) still solves, in which the finding is gone and nothing new appears; and the
 // fixed circuit must really be safe by ngspice's numbers, not only by pnlint's.
 import { beforeAll, describe, expect, it } from 'vitest';
-import { execFileSync } from 'node:child_process';
 import { readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { declareNgspiceGate, runNgspiceOperatingPoint } from '../support/ngspice.js';
 import {
   DEFAULT_SUPPLY_TOLERANCE,
   LED_RULE_OF_THUMB_CURRENT,
-  ROOT,
   SETUP_TIMEOUT_MILLISECONDS,
   alarms,
   checkJson,
@@ -52,7 +50,6 @@ let before: CheckReport;
 let fixRun: CliRun;
 let after: CheckReport;
 beforeAll(() => {
-  execFileSync(process.execPath, [join(ROOT, 'node_modules/typescript/bin/tsc'), '-b'], { cwd: ROOT, stdio: 'ignore' });
   folder = copyOfCircuits('bad');
   files = readdirSync(folder).filter((name) => name.endsWith('.cir'));
   before = checkJson(files, folder);

@@ -3,7 +3,6 @@
 // operating points, as `pnlint op` prints them, must agree with the reference engine
 // (ngspice 39); directives and pnlint.json must change the verdict the way product.md says.
 import { beforeAll, describe, expect, it } from 'vitest';
-import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -11,7 +10,6 @@ import { declareNgspiceGate, ngspiceBranchName, ngspiceNodeName, runNgspiceOpera
 import {
   CIRCUITS,
   LED_RULE_OF_THUMB_CURRENT,
-  ROOT,
   SETUP_TIMEOUT_MILLISECONDS,
   alarms,
   checkJson,
@@ -68,7 +66,6 @@ const COMPARED = [
 let report: CheckReport;
 let configReport: CheckReport;
 beforeAll(async () => {
-  execFileSync(process.execPath, [join(ROOT, 'node_modules/typescript/bin/tsc'), '-b'], { cwd: ROOT, stdio: 'ignore' });
   report = checkJson(GOOD_FILES, GOOD);
   configReport = checkJson(['g21-config-ratings.cir'], join(GOOD, 'config-folder'));
   const files = [...new Set([...COMPARED, 'g14-esd-clamps.cir'])].map((file) => `good/${file}`);

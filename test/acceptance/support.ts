@@ -1,5 +1,5 @@
 // Helpers for the acceptance tests: pnlint run the way a hardware engineer runs it (the
-// built CLI in a child process), the netlists of circuits/, the numbers read back out of
+// built CLI in a child process: build first with `npm run build`, as `npm test` does), the netlists of circuits/, the numbers read back out of
 // its messages, and the reference engine (ngspice 39) run on the same netlists at a
 // chosen corner. Expected values come from ngspice or from hand formulas in the tests,
 // never from pnlint's own output.
@@ -15,8 +15,8 @@ export const CIRCUITS = join(ROOT, 'test/acceptance/circuits');
 const LAUNCHER = join(ROOT, 'server/bin/pnlint.js');
 
 /**
- * The setup of each file (a `tsc -b`, then the CLI runs) may take this long on a loaded
- * 2-core machine: the default 10 s hook timeout was seen to expire (the build alone took 22 s).
+ * The setup of each file (several CLI runs) may take this long on a loaded 2-core machine:
+ * the default 10 s hook timeout was seen to expire.
  */
 export const SETUP_TIMEOUT_MILLISECONDS = 180_000;
 
