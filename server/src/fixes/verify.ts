@@ -155,7 +155,13 @@ export class FixSession {
 
   /** Whether the re-check reports anything the original check did not. */
   bringsNew(verified: Verified): boolean {
-    return this.baseline.anyNew(verified.check.findings, verified.circuit);
+    const found = this.newFindings(verified);
+    return found.otherwise || found.aboutElements.length > 0;
+  }
+
+  /** What the re-check reports that the original check did not. */
+  newFindings(verified: Verified): NewFindings {
+    return this.baseline.newIn(verified.check.findings, verified.circuit);
   }
 
   /**
@@ -215,7 +221,8 @@ function withoutNumbers(message: string): string {
  * and netlist diagnostics are counted by their key.
  */
 class KnownFindings {
-  private readonly groups = new Map<string, Set<string>[]>();
+  /** By `rule|severity`: every element the original's findings of that kind are about or name in their group. */
+  private readonly known = new Map<string, Set<string>>();
   private readonly counts: Map<string, number>;
 
   constructor(findings: readonly Finding[], circuit: Circuit) {
@@ -223,24 +230,36 @@ class KnownFindings {
     for (const finding of findings) {
       if (finding.element === undefined) continue;
       const key = `${finding.rule}|${finding.severity}`;
-      const list = this.groups.get(key) ?? [];
-      list.push(groupOf(finding, names));
-      this.groups.set(key, list);
+      let known = this.known.get(key);
+      if (!known) this.known.set(key, (known = new Set()));
+      for (const element of groupOf(finding, names)) known.add(element);
     }
     this.counts = countKeys(findings, circuit.diagnostics);
   }
 
-  anyNew(findings: readonly Finding[], circuit: Circuit): boolean {
+  /**
+   * What a re-check reports that the original did not: the new findings about elements, and
+   * whether anything else is new (a finding with no element, a netlist diagnostic).
+   */
+  newIn(findings: readonly Finding[], circuit: Circuit): NewFindings {
+    const aboutElements: Finding[] = [];
     for (const finding of findings) {
       if (finding.element === undefined) continue;
-      const element = finding.element.toLowerCase();
-      if (!(this.groups.get(`${finding.rule}|${finding.severity}`) ?? []).some((group) => group.has(element))) return true;
+      if (!this.known.get(`${finding.rule}|${finding.severity}`)?.has(finding.element.toLowerCase())) aboutElements.push(finding);
     }
+    let otherwise = false;
     for (const [key, count] of countKeys(findings, circuit.diagnostics)) {
-      if (count > (this.counts.get(key) ?? 0)) return true;
+      if (count > (this.counts.get(key) ?? 0)) otherwise = true;
     }
-    return false;
+    return { aboutElements, otherwise };
   }
+}
+
+/** What a re-check brought that the original check did not have. */
+export interface NewFindings {
+  aboutElements: Finding[];
+  /** A new finding with no element, or a new netlist diagnostic. */
+  otherwise: boolean;
 }
 
 function elementNames(circuit: Circuit): Set<string> {
