@@ -70,9 +70,16 @@ class ExpressionParser extends EmbeddedActionsParser {
   /** Maps the lexed slice's offsets into the whole text. */
   base = 0;
   index: LineIndex | undefined;
-  /** Operands and operators of the binary chains being read; each chain uses the part above where it began. */
+  // The operands and operators of the binary chains being read, each chain above where it
+  // began (a chain may hold a parenthesised one); counts rather than `length = 0`, which would
+  // give up the lists' storage.
   private readonly chainOperands: Expr[] = [];
+  private chainOperandCount = 0;
   private readonly chainOperators: IToken[] = [];
+  private chainOperatorCount = 0;
+  /** Scratch stacks of groupChain, which reads no input and so never nests. */
+  private readonly groupedValues: Expr[] = [];
+  private readonly pendingOperators: IToken[] = [];
 
   constructor(skipValidations: boolean) {
     super(expressionTokens, { recoveryEnabled: false, maxLookahead: 1, skipValidations });
@@ -82,8 +89,8 @@ class ExpressionParser extends EmbeddedActionsParser {
   override reset(): void {
     super.reset();
     // A chain left half-read by a syntax error must not linger into the next expression.
-    this.chainOperands.length = 0;
-    this.chainOperators.length = 0;
+    this.chainOperandCount = 0;
+    this.chainOperatorCount = 0;
   }
 
   private next(type: TokenType): boolean {
@@ -129,44 +136,52 @@ class ExpressionParser extends EmbeddedActionsParser {
     const operator = this.OR(this.operatorAlternatives);
     const operand = this.SUBRULE1(this.unary);
     if (this.RECORDING_PHASE) return;
-    this.chainOperators.push(operator);
-    this.chainOperands.push(operand);
+    this.chainOperators[this.chainOperatorCount++] = operator;
+    this.chainOperands[this.chainOperandCount++] = operand;
   };
 
   /** `a || b && c < d + e * f`: unary operands joined by binary operators. */
   binary = this.RULE('binary', (): Expr => {
     const first = this.SUBRULE(this.unary);
     if (!this.RECORDING_PHASE && !BINDING.has(this.LA(1).tokenType)) return first;
-    const operandBase = this.chainOperands.length;
-    const operatorBase = this.chainOperators.length;
-    if (!this.RECORDING_PHASE) this.chainOperands.push(first);
+    const operandBase = this.chainOperandCount;
+    const operatorBase = this.chainOperatorCount;
+    if (!this.RECORDING_PHASE) this.chainOperands[this.chainOperandCount++] = first;
     this.MANY(this.chainLink);
     if (this.RECORDING_PHASE) return first;
-    return this.groupChain(operandBase, operatorBase);
+    const chain = this.groupChain(operandBase, operatorBase);
+    this.chainOperandCount = operandBase;
+    this.chainOperatorCount = operatorBase;
+    return chain;
   });
 
-  /** Groups the chain gathered above the bases by precedence, from the left, and removes it from the stacks. */
+  private binaryNode(operator: IToken, left: Expr, right: Expr): Expr {
+    return { kind: 'binary', op: operator.image as BinaryOp, left, right, range: this.join(left, right) };
+  }
+
+  /** Groups the chain gathered above the bases by precedence, each level from the left (operator-precedence parsing). */
   private groupChain(operandBase: number, operatorBase: number): Expr {
     const operands = this.chainOperands;
     const operators = this.chainOperators;
-    const values: Expr[] = [operands[operandBase]!];
-    const pending: IToken[] = [];
-    const reduce = (): void => {
-      const operator = pending.pop()!;
-      const right = values.pop()!;
-      const left = values.pop()!;
-      values.push({ kind: 'binary', op: operator.image as BinaryOp, left, right, range: this.join(left, right) });
-    };
-    for (let at = operatorBase; at < operators.length; at++) {
-      const operator = operators[at]!;
-      const binding = BINDING.get(operator.tokenType)!;
-      while (pending.length > 0 && BINDING.get(pending[pending.length - 1]!.tokenType)! >= binding) reduce();
-      pending.push(operator);
-      values.push(operands[operandBase + 1 + at - operatorBase]!);
+    const operatorCount = this.chainOperatorCount - operatorBase;
+    if (operatorCount === 1) return this.binaryNode(operators[operatorBase]!, operands[operandBase]!, operands[operandBase + 1]!);
+    const values = this.groupedValues;
+    const pending = this.pendingOperators;
+    let valueCount = 0;
+    let pendingCount = 0;
+    values[valueCount++] = operands[operandBase]!;
+    for (let at = 0; at <= operatorCount; at++) {
+      // Past the last operator, everything still pending is grouped.
+      const binding = at < operatorCount ? BINDING.get(operators[operatorBase + at]!.tokenType)! : 0;
+      while (pendingCount > 0 && BINDING.get(pending[pendingCount - 1]!.tokenType)! >= binding) {
+        const right = values[--valueCount]!;
+        const left = values[--valueCount]!;
+        values[valueCount++] = this.binaryNode(pending[--pendingCount]!, left, right);
+      }
+      if (at === operatorCount) break;
+      pending[pendingCount++] = operators[operatorBase + at]!;
+      values[valueCount++] = operands[operandBase + 1 + at]!;
     }
-    while (pending.length > 0) reduce();
-    operands.length = operandBase;
-    operators.length = operatorBase;
     return values[0]!;
   }
 

@@ -119,10 +119,16 @@ function beginsLikeNumber(text: string): boolean {
 class FieldParser extends EmbeddedActionsParser {
   maker: FieldMaker | undefined;
   lines: FieldLine[] = [];
-  /** The fields of the line being read; copied to an array of its exact size at the line's end. */
-  private readonly current: Field[] = [];
-  /** The item lists of the groups being read, innermost last. */
-  private groupItems: Field[][] = [];
+  // Scratch lists, reused for every line and group: fields are gathered here and copied to an
+  // array of exact size when their line or group ends (an array grown by push keeps spare
+  // room, and every line's array is kept). Counts rather than `length = 0`, which would give
+  // up the scratch list's storage.
+  /** The fields of the line being read: the first `lineFieldCount` entries. */
+  private readonly lineFields: Field[] = [];
+  private lineFieldCount = 0;
+  /** The items of the groups being read, innermost last: each group's begin where it opened. */
+  private readonly groupFields: Field[] = [];
+  private groupFieldCount = 0;
   /** The `,`-separated rest of a list value (`ic=1,2`); the repetition that fills it does not nest. */
   private listRest: Field[] | undefined;
 
@@ -134,16 +140,15 @@ class FieldParser extends EmbeddedActionsParser {
 
   override reset(): void {
     super.reset();
-    this.current.length = 0;
-    this.groupItems = [];
+    this.lineFieldCount = 0;
+    this.groupFieldCount = 0;
     this.listRest = undefined;
   }
 
   private endLine(): void {
     const maker = this.maker!;
-    // A copy of exact size: an array grown by push keeps spare room, and every line's array is kept.
-    this.lines.push({ fields: this.current.slice(), problem: maker.problem });
-    this.current.length = 0;
+    this.lines.push({ fields: this.lineFields.slice(0, this.lineFieldCount), problem: maker.problem });
+    this.lineFieldCount = 0;
     maker.problem = undefined;
   }
 
@@ -204,7 +209,9 @@ class FieldParser extends EmbeddedActionsParser {
   private readonly assignmentAfterGroup = (): Field => this.SUBRULE2(this.assignedValue);
 
   private readonly lineAlternatives = [
-    ...this.fieldForms((field) => this.current.push(field)),
+    ...this.fieldForms((field) => {
+      this.lineFields[this.lineFieldCount++] = field;
+    }),
     {
       ALT: () => {
         this.CONSUME(Newline);
@@ -243,7 +250,9 @@ class FieldParser extends EmbeddedActionsParser {
   simpleValue = this.RULE('simpleValue', (): Field => this.OR(this.simpleAlternatives));
 
   private readonly groupAlternatives = [
-    ...this.fieldForms((field) => this.groupItems[this.groupItems.length - 1]!.push(field)),
+    ...this.fieldForms((field) => {
+      this.groupFields[this.groupFieldCount++] = field;
+    }),
     { ALT: () => { this.CONSUME(Comma); } },
     this.strayEquals,
     this.strayBrace,
@@ -256,13 +265,12 @@ class FieldParser extends EmbeddedActionsParser {
   /** `( items )`; a missing `)` is reported at the `(`. The name, if any, is set by the caller. */
   group = this.RULE('group', (): GroupField => {
     const open = this.CONSUME(LeftParen);
-    if (!this.RECORDING_PHASE) this.groupItems.push([]);
+    const begin = this.groupFieldCount;
     this.MANY(this.groupItem);
     const close = this.next(RightParen) ? this.OPTION(this.closeParen) : undefined;
     if (this.RECORDING_PHASE) return undefined as unknown as GroupField;
-    const gathered = this.groupItems.pop()!;
-    // A copy of exact size, as for a line's fields.
-    const items = gathered.slice();
+    const items = this.groupFields.slice(begin, this.groupFieldCount);
+    this.groupFieldCount = begin;
     const maker = this.maker!;
     let end = open.startOffset + 1;
     if (close) end = close.startOffset + 1;
@@ -338,7 +346,9 @@ function wordWithTails(token: IToken, group: GroupField | undefined, value: Fiel
 function named(group: GroupField, token: IToken, maker: FieldMaker): GroupField {
   const name = maker.word(token);
   group.name = name;
-  group.range = { start: name.range.start, end: group.range.end };
+  // The group's range was made by the group rule and is shared with nothing yet: it is moved
+  // to start at the name rather than replaced.
+  group.range.start = name.range.start;
   return group;
 }
 
@@ -352,15 +362,15 @@ let parser: FieldParser | undefined;
 export function validateFieldGrammar(): void {
   new FieldParser(false);
 }
-const endOfLine = createTokenInstance(Newline, '', Number.NaN, Number.NaN, Number.NaN, Number.NaN, Number.NaN, Number.NaN);
 
-/** Reads each line (a list of tokens) into fields, in one parser call. */
-export function readFieldLines(lines: readonly (readonly IToken[])[], maker: FieldMaker): FieldLine[] {
-  const input: IToken[] = [];
-  for (const line of lines) {
-    for (const token of line) input.push(token);
-    input.push(endOfLine);
-  }
+/** Ends each line of the field parser's input. */
+export const END_OF_LINE = createTokenInstance(Newline, '', Number.NaN, Number.NaN, Number.NaN, Number.NaN, Number.NaN, Number.NaN);
+
+/**
+ * Reads lines into fields, in one parser call: `input` holds each line's tokens followed by
+ * END_OF_LINE. One FieldLine per line read; fewer only if the parser stopped early.
+ */
+export function readFieldLines(input: IToken[], maker: FieldMaker): FieldLine[] {
   parser ??= new FieldParser(true);
   parser.maker = maker;
   parser.lines = [];
@@ -370,12 +380,5 @@ export function readFieldLines(lines: readonly (readonly IToken[])[], maker: Fie
   parser.lines = [];
   parser.maker = undefined;
   parser.input = [];
-  // The grammar accepts everything; should it ever stop early, the unread lines say so.
-  while (result.length < lines.length) {
-    const line = lines[result.length]!;
-    const first = line[0];
-    const range = first ? maker.tokenRange(first) : maker.index.range(0, 0);
-    result.push({ fields: [], problem: { message: 'this line could not be read', range } });
-  }
   return result;
 }

@@ -9,7 +9,7 @@
 
 import type { IToken } from 'chevrotain';
 import type { ParseDiagnostic, ParseOptions, ParseResult, Statement } from './ast.js';
-import { FieldMaker, readFieldLines, type FieldLine } from './fields.js';
+import { END_OF_LINE, FieldMaker, readFieldLines, type FieldLine } from './fields.js';
 import {
   atLineStart,
   CommentLine,
@@ -25,7 +25,7 @@ import {
 } from './lexer.js';
 import { LineIndex } from './positions.js';
 import { nestBlocks } from './structure.js';
-import { MAX_NESTING, needsFields, StatementBuilder, type LineResult, type LogicalLine } from './statements.js';
+import { MAX_NESTING, readsFieldsFrom, StatementBuilder, type LineResult, type LogicalLine } from './statements.js';
 
 /** What a chunk's tokens group into: a logical line still to read, or a finished statement. */
 type Item = LogicalLine | Statement;
@@ -76,7 +76,7 @@ function parseUnguarded(text: string, options: ParseOptions): ParseResult {
   while (start < text.length && !ended) {
     const end = chunkEnd(text, start, CHUNK_SIZE, controlBlocks);
     const tokens = netlistLexer.tokenize(start === 0 && end === text.length ? text : text.slice(start, end)).tokens;
-    if (start > 0) for (const token of tokens) token.startOffset += start;
+    if (start > 0) for (let at = 0; at < tokens.length; at++) tokens[at]!.startOffset += start;
     const last = tokens[tokens.length - 1];
     ended = last !== undefined && last.tokenType === EndAndRest;
     readChunk(tokens, maker, builder, diagnostics, results);
@@ -88,21 +88,21 @@ function parseUnguarded(text: string, options: ParseOptions): ParseResult {
 }
 
 function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilder, diagnostics: ParseDiagnostic[], results: LineResult[]): void {
-  const items = groupLines(tokens, maker, diagnostics);
-  // Every element line and most dot commands go through the field parser, in one call per chunk.
-  const structured: IToken[][] = [];
-  for (const item of items) if ('tokens' in item && needsFields(item)) structured.push(item.tokens);
-  const fieldLines = readFieldLines(structured, maker);
+  // Every element line and most dot commands go through the field parser, in one call per
+  // chunk: their tokens, each line ended by an end-of-line token, are its input.
+  const fieldInput: IToken[] = [];
+  const items = groupLines(tokens, maker, diagnostics, fieldInput);
+  const fieldLines = readFieldLines(fieldInput, maker);
   let next = 0;
-  for (const item of items) {
+  for (let at = 0; at < items.length; at++) {
+    const item = items[at]!;
     if (!('tokens' in item)) {
       results.push(item);
-      continue;
-    }
-    if (!needsFields(item)) {
+    } else if (!item.readsFields) {
       results.push(builder.build(item, undefined, undefined));
     } else {
-      const reading: FieldLine = fieldLines[next++]!;
+      // The grammar accepts everything; should it ever stop early, the unread lines say so.
+      const reading: FieldLine = fieldLines[next++] ?? { fields: [], problem: { message: 'this line could not be read', range: maker.tokenRange(item.first) } };
       results.push(builder.build(item, reading.fields, reading.problem));
     }
   }
@@ -171,10 +171,16 @@ function nextStatementStart(text: string, from: number): number {
   return text.length;
 }
 
-/** Groups tokens into logical lines and stand-alone statements, in source order. */
-function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagnostic[]): Item[] {
+/**
+ * Groups tokens into logical lines and stand-alone statements, in source order. The tokens
+ * of the lines that the field parser reads go to `fieldInput`, each line followed by
+ * END_OF_LINE.
+ */
+function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagnostic[], fieldInput: IToken[]): Item[] {
   const items: Item[] = [];
   let current: LogicalLine | undefined;
+  /** Where the current line's tokens begin in `fieldInput`. */
+  let inputStart = 0;
   /** A line break was seen since the last token of the current physical line. */
   let afterBreak = true;
   /** The rest of this physical line is skipped (after a `+` with nothing to continue). */
@@ -183,10 +189,18 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
   let depth = 0;
 
   const finish = (): void => {
+    if (current?.readsFields) {
+      // A line nested too deep is not read (the builder says so): its tokens leave the input.
+      if (current.tooDeep) {
+        fieldInput.length = inputStart;
+        current.readsFields = false;
+      } else fieldInput.push(END_OF_LINE);
+    }
     current = undefined;
   };
 
-  for (const token of tokens) {
+  for (let at = 0; at < tokens.length; at++) {
+    const token = tokens[at]!;
     const type = token.tokenType;
     if (type === Newline) {
       afterBreak = true;
@@ -244,18 +258,25 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
       continue;
     }
     if (!current) {
-      current = { tokens: [], comment: undefined, end: 0, tooDeep: undefined, command: null };
+      const readsFields = readsFieldsFrom(token);
+      current = { first: token, readsFields, tokens: readsFields ? NO_TOKENS : [], comment: undefined, end: 0, tooDeep: undefined, command: null };
       items.push(current);
+      inputStart = fieldInput.length;
       depth = 0;
     }
     if (type === LeftParen) {
       if (++depth > MAX_NESTING) current.tooDeep ??= token;
     } else if (type === RightParen && depth > 0) depth--;
-    current.tokens.push(token);
+    if (current.readsFields) fieldInput.push(token);
+    else current.tokens.push(token);
     current.end = token.startOffset + token.image.length;
   }
+  finish();
   return items;
 }
+
+/** The `tokens` of every line that the field parser reads: never added to. */
+const NO_TOKENS: IToken[] = [];
 
 function controlStatement(token: IToken, maker: FieldMaker, diagnostics: ParseDiagnostic[]): Statement {
   const image = token.image;

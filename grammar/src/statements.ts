@@ -20,6 +20,14 @@ import { BraceExpression, Comma, Equals, LeftParen, QuotedString, QuoteExpressio
 
 /** A statement's words across its `+` lines, and its inline comment. */
 export interface LogicalLine {
+  /** The statement's first token. */
+  first: IToken;
+  /**
+   * True when the field parser reads the line (element lines and most dot commands): its
+   * tokens then go straight into the parser's input, and `tokens` stays empty.
+   */
+  readsFields: boolean;
+  /** The tokens, for the lines built from their tokens (`.param`, `.func`, B sources, …). */
   tokens: IToken[];
   comment: IToken | undefined;
   /** End offset of the last token, the comment included. */
@@ -83,33 +91,38 @@ const DOT_COMMANDS: Readonly<Record<string, string>> = {
 /** Commands read from their tokens rather than as a list of fields. */
 const RAW_COMMANDS = new Set(['param', 'func', 'if', 'elseif', 'include', 'inc', 'lib', 'title']);
 
-/** The lower-cased dot command of a line (`model` for `.MODEL`), or undefined for an element line. */
-export function dotCommandOf(line: LogicalLine): string | undefined {
-  if (line.command !== null) return line.command;
-  const first = line.tokens[0];
-  if (!first || first.tokenType !== Word || first.image.charCodeAt(0) !== 46) return (line.command = undefined);
-  return (line.command = first.image.slice(1).toLowerCase());
+/** The lower-cased dot command that `first` starts (`model` for `.MODEL`), or undefined for an element line. */
+function dotCommandStartedBy(first: IToken): string | undefined {
+  if (first.tokenType !== Word || first.image.charCodeAt(0) !== 46) return undefined;
+  return first.image.slice(1).toLowerCase();
 }
 
-/** True when the line's words go through the field parser. */
-export function needsFields(line: LogicalLine): boolean {
-  if (line.tooDeep) return false;
-  const command = dotCommandOf(line);
+/** The lower-cased dot command of a line, or undefined for an element line. */
+export function dotCommandOf(line: LogicalLine): string | undefined {
+  if (line.command === null) line.command = dotCommandStartedBy(line.first);
+  return line.command;
+}
+
+/**
+ * True when the line that `first` starts goes through the field parser (unless its
+ * parentheses nest too deep: see LogicalLine.tooDeep).
+ */
+export function readsFieldsFrom(first: IToken): boolean {
+  const command = dotCommandStartedBy(first);
   if (command !== undefined) return !RAW_COMMANDS.has(command);
-  return startsWithLetter(line) && !isBehaviouralSource(line);
+  return startsWithLetter(first) && !isBehaviouralSource(first);
 }
 
 /**
  * A B element (behavioural source): `V=`/`I=` take an expression that ngspice 39 reads
  * without braces too (`B1 a 0 V=(v(b)==1) ? 3 : 0`), so its line is read like `.param`.
  */
-function isBehaviouralSource(line: LogicalLine): boolean {
-  return (line.tokens[0]!.image.charCodeAt(0) | 0x20) === 98 /* b */;
+function isBehaviouralSource(first: IToken): boolean {
+  return (first.image.charCodeAt(0) | 0x20) === 98 /* b */;
 }
 
-function startsWithLetter(line: LogicalLine): boolean {
-  const first = line.tokens[0];
-  if (!first || first.tokenType !== Word) return false;
+function startsWithLetter(first: IToken): boolean {
+  if (first.tokenType !== Word) return false;
   const code = first.image.charCodeAt(0) | 0x20;
   return code >= 97 && code <= 122;
 }
@@ -140,7 +153,7 @@ export class StatementBuilder {
 
   /** Builds the statement of one line; `fields` is the field parser's reading when it read the line. */
   build(line: LogicalLine, fields: Field[] | undefined, fieldProblem: { message: string; range: Range } | undefined): LineResult {
-    const first = line.tokens[0]!;
+    const first = line.first;
     const range = this.lineRange(line, fields);
     this.maker.problem = fieldProblem;
     const command = dotCommandOf(line);
@@ -149,10 +162,10 @@ export class StatementBuilder {
       this.maker.report(`parentheses nested more than ${MAX_NESTING} deep: this line is not read`, this.maker.tokenRange(line.tooDeep));
       result = undefined;
     } else if (command === undefined) {
-      if (!startsWithLetter(line)) {
+      if (!startsWithLetter(first)) {
         this.maker.report('a netlist line starts with an element name (a letter), a dot command, `*` or `+`', this.maker.tokenRange(first));
         result = undefined;
-      } else if (isBehaviouralSource(line)) {
+      } else if (isBehaviouralSource(first)) {
         result = this.behaviouralSource(line, range);
       } else {
         result = this.element(fields!, range);
@@ -176,7 +189,8 @@ export class StatementBuilder {
     const index = this.maker.index;
     const firstField = fields?.[0];
     const lastField = fields?.[fields.length - 1];
-    const start = firstField && firstField.range.start.offset === line.tokens[0]!.startOffset ? firstField.range.start : index.position(line.tokens[0]!.startOffset);
+    const lineStart = line.first.startOffset;
+    const start = firstField && firstField.range.start.offset === lineStart ? firstField.range.start : index.position(lineStart);
     const end = lastField && lastField.range.end.offset === line.end ? lastField.range.end : index.position(line.end);
     return { start, end };
   }
@@ -214,7 +228,7 @@ export class StatementBuilder {
   }
 
   private dotCommand(command: string, line: LogicalLine, fields: Field[] | undefined, range: Range): LineResult {
-    const commandToken = line.tokens[0]!;
+    const commandToken = line.first;
     const commandRange = this.maker.tokenRange(commandToken);
     const rest = fields ? fields.slice(1) : [];
     switch (command) {
