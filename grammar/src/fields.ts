@@ -100,6 +100,11 @@ export class FieldMaker {
   }
 }
 
+/** A word followed by one of these is not a plain word: it names a group or is a key. */
+function takesTail(next: TokenType): boolean {
+  return next === LeftParen || next === Equals;
+}
+
 function beginsLikeNumber(text: string): boolean {
   let code = text.charCodeAt(0);
   let at = 0;
@@ -182,7 +187,13 @@ class FieldParser extends EmbeddedActionsParser {
           const token = this.CONSUME(Word);
           const group = this.next(LeftParen) ? this.OPTION1(this.groupAfterWord) : undefined;
           const value = this.next(Equals) ? this.OPTION2(this.assignmentAfterWord) : undefined;
-          if (!this.RECORDING_PHASE) add(wordWithTails(token, group, value, this.maker!));
+          if (this.RECORDING_PHASE) return;
+          const maker = this.maker!;
+          add(wordWithTails(token, group, value, maker));
+          // The words after it that take no group and no value (most of an element line,
+          // `R1 in out 4.7k`) are consumed here, each as the next round of the repetition
+          // around this choice would take it, without that round's two lookahead decisions.
+          while (this.LA(1).tokenType === Word && !takesTail(this.LA(2).tokenType)) add(maker.wordOrNumber(this.CONSUME(Word)));
         },
       },
       {
