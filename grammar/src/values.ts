@@ -37,11 +37,12 @@ const DECIMAL_EXPONENTS: Readonly<Record<string, number>> = { t: 12, g: 9, meg: 
 const EXACT_POWERS_OF_TEN: readonly number[] = Array.from({ length: 23 }, (_unused, power) => Number(`1e${power}`));
 
 /**
- * The common case without building a string: digits × 10^k, with the digits an integer of at most
- * 15 figures and |k| ≤ 22, is one correctly rounded multiplication or division of exact operands,
- * so it gives the very value that converting the decimal text gives. Undefined otherwise.
+ * The common case without building a string: digits × 10^k, with the digits (the first `length`
+ * characters of `mantissa`) an integer of at most 15 figures and |k| ≤ 22, is one correctly
+ * rounded multiplication or division of exact operands, so it gives the very value that
+ * converting the decimal text gives. Undefined otherwise.
  */
-function scaledExactly(mantissa: string, exponent: number): number | undefined {
+function scaledExactly(mantissa: string, exponent: number, length = mantissa.length): number | undefined {
   let index = 0;
   let sign = 1;
   const first = mantissa.charCodeAt(0);
@@ -53,7 +54,7 @@ function scaledExactly(mantissa: string, exponent: number): number | undefined {
   let figures = 0;
   let fractionFigures = 0;
   let afterPoint = false;
-  for (; index < mantissa.length; index++) {
+  for (; index < length; index++) {
     const code = mantissa.charCodeAt(index);
     if (code === 46 /* . */) {
       afterPoint = true;
@@ -127,8 +128,8 @@ export function readSpiceValue(text: string): number | undefined {
     const next = text.charCodeAt(index + 1) | 0x20;
     if (next === 101 /* e */ || next === 105 /* i */) return readSpiceNumber(text)?.value; // meg, mil
   }
-  const mantissa = text.slice(0, index);
-  return scaledExactly(mantissa, exponent) ?? scaled(mantissa, String.fromCharCode(lower));
+  // The mantissa is the first `index` characters: read in place, cut out only on the general path.
+  return scaledExactly(text, exponent, index) ?? scaled(text.slice(0, index), String.fromCharCode(lower));
 }
 
 /**
