@@ -42,6 +42,7 @@ const FIXABLE: Record<string, { rule: string; element: string }> = {
   'b10-zener-starved-load.cir': { rule: 'zener-underbiased', element: 'DREF' },
   'b11-zener-starved-rail.cir': { rule: 'zener-underbiased', element: 'DBIAS' },
   'b12-zener-forward.cir': { rule: 'zener-forward', element: 'DREF' },
+  'b28-ac-led-series-blocker.cir': { rule: 'reverse-overvoltage', element: 'DLED' },
 };
 
 let folder: string;
@@ -172,6 +173,12 @@ describe.runIf(ngspice)('the fixed circuits by the reference engine', () => {
     const rmax = (5 * LOW - 3.3) / (1e-3 + 3.3 / 4700); // textbook zener window, as above
     expect(resistorValue(file, 'RBIAS')).toBeLessThanOrEqual(rmax);
     expect(-referenceDiodeCurrent(fixedText(file), 'DBIAS', { V5: `V5 v5 0 DC ${5 * LOW}` })).toBeGreaterThanOrEqual(1e-3);
+  });
+
+  it('b28: with its anti-parallel guard the LED sees under 80 % of its 6 V rating at the AC trough', () => {
+    const netlist = withLines(fixedText('b28-ac-led-series-blocker.cir'), { VAC: `VAC ac 0 DC ${-34 * HIGH}` });
+    const reverse = -referenceSolve(netlist, ['v(b)']).get('v(b)')!;
+    expect(reverse).toBeLessThan(0.8 * 6); // derating, common practice, no source; BV 6 V of model LEDRED
   });
 
   it('b12: the zener turned around regulates near its 5.1 V', () => {

@@ -1,11 +1,13 @@
 // reverse-overvoltage: the peak reverse voltage across a diode against its reverse rating,
-// derated (default 80 %): error above the rating or in breakdown, warning inside the margin.
+// derated (default 80 %): error above the rating or in breakdown (at least IBV in reverse:
+// breakdown.ts), warning inside the margin.
 // Zeners are meant to work in breakdown and are left to their own rules. Time-varying
 // sources are sampled quasi-statically; where a capacitor sits beside a diode, the samples
 // are also solved with it holding its charge (held-charge.ts), which is what doubles a
 // half-wave rectifier's reverse voltage.
 import type { Finding } from '../../findings.js';
 import { formatPercent, formatQuantity } from '../../units.js';
+import { inReverseBreakdown } from '../breakdown.js';
 import { atCorner, type CheckContext } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
@@ -29,7 +31,7 @@ export const reverseOvervoltage: Rule = {
       let worst: (typeof candidates)[number] | undefined;
       for (const candidate of candidates) if (!worst || -candidate.at.point.voltage > -worst.at.point.voltage) worst = candidate;
       if (!worst || worst.at.point.voltage >= 0) continue;
-      const breakdown = candidates.find((candidate) => candidate.at.point.region === 'breakdown');
+      const breakdown = candidates.find((candidate) => inReverseBreakdown(diode.element, candidate.at.point));
       const governing = breakdown ?? worst;
       const name = diode.element.name;
       const rating = diode.ratings.vrrm;
