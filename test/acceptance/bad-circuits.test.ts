@@ -239,6 +239,8 @@ describe.runIf(ngspice)('zener-forward', () => {
     const file = 'b12-zener-forward.cir';
     const found = finding(file, 'zener-forward');
     expectAt(found, 'warning', 4, 'DREF');
+    // Reported once: a zener fitted forward is not also called under-biased (it was, as x05).
+    expect(report.byFile.get(file)!.filter((f) => f.rule === 'zener-underbiased')).toEqual([]);
     const netlist = withLines(readCircuit(`bad/${file}`), { V12: `V12 v12 0 DC ${12 * HIGH}` });
     const current = referenceDiodeCurrent(netlist, 'DREF');
     const clamp = referenceSolve(netlist, ['v(ref)']).get('v(ref)')!;

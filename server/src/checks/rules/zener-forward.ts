@@ -1,13 +1,12 @@
 // zener-forward: a zener placed forward clamps at about 0.7 V (common practice, no source),
 // not at its zener voltage. Back-to-back zeners, where one conducts forward while its
-// partner is in breakdown, are the usual AC clamp and are left alone.
+// partner is in breakdown, are the usual AC clamp and are left alone (zener-forward-bias.ts).
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
-import { seriesChain } from '../topology.js';
-import { forwardCurrent, PLAUSIBLE_CURRENT, worstCorner } from '../thresholds.js';
+import { forwardBiasedZener } from '../zener-forward-bias.js';
 import { cornerSources } from './related.js';
 import type { Rule } from './rule.js';
 
@@ -19,15 +18,8 @@ export const zenerForward: Rule = {
     const findings: Finding[] = [];
     for (const diode of context.diodes) {
       if (diode.kind !== 'zener' || diode.unchecked) continue;
-      const worst = worstCorner(diode, forwardCurrent);
-      if (!worst || worst.value < PLAUSIBLE_CURRENT) continue;
-      const partners = diode.element.nodes.flatMap((node) => seriesChain(context.topology, diode.element, node));
-      const backToBack = partners.some((partner) => {
-        const other = context.diodeOf(partner);
-        const there = other?.corners.find((at) => at.plan === worst.at.plan);
-        return other?.kind === 'zener' && there !== undefined && there.point.region === 'breakdown';
-      });
-      if (backToBack) continue;
+      const worst = forwardBiasedZener(context, diode);
+      if (!worst) continue;
       const name = diode.element.name;
       const vz = diode.ratings.vz ? ` ${describeRating('vz', diode.ratings.vz)}` : '';
       const finding = makeFinding(

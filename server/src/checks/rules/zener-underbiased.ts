@@ -1,7 +1,8 @@
 // zener-underbiased: a zener's reverse current at the worst corner (low supply, heavy load)
 // below its minimum regulating current. A zener that reaches breakdown at no corner is taken
 // as a clamp that is meant to stay idle, and left alone, unless its IZK or IZT is given
-// (a directive or pnlint.json), which says it is meant to regulate.
+// (a directive or pnlint.json), which says it is meant to regulate. A zener fitted forward
+// is zener-forward's (zener-forward-bias.ts), not this rule's.
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext, type CheckedDiode, type DiodeAtCorner } from '../context.js';
@@ -10,6 +11,7 @@ import { makeFinding } from '../finding.js';
 import { describeRating } from '../ratings.js';
 import { feedResistors } from '../topology.js';
 import { CONDUCTION_THRESHOLD, worstCorner } from '../thresholds.js';
+import { forwardBiasedZener } from '../zener-forward-bias.js';
 import { cornerSources, nodesAt } from './related.js';
 import type { Rule } from './rule.js';
 
@@ -21,6 +23,8 @@ export const zenerUnderbiased: Rule = {
     const findings: Finding[] = [];
     for (const diode of context.diodes) {
       if (diode.kind !== 'zener' || diode.unchecked) continue;
+      // Fitted forward: zener-forward says so; its reverse current is not the problem.
+      if (forwardBiasedZener(context, diode)) continue;
       const knee = diode.ratings.izk;
       // Regulating somewhere, or declared a regulator by giving its regulating currents.
       const regulating = diode.corners.some((at) => -at.point.current >= CONDUCTION_THRESHOLD && at.point.voltage < 0);
