@@ -9,12 +9,15 @@
 // PNLINT_SERVER_ENTRY=<script> measures another build (e.g. the extension's bundle);
 // PNLINT_BENCH_SERVER_FLAGS='--cpu-prof --cpu-prof-dir=/tmp/prof' profiles the server.
 import { spawn } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { createProtocolConnection, StreamMessageReader, StreamMessageWriter } from 'vscode-languageserver-protocol/node.js';
 
-const SERVER_ENTRY = process.env['PNLINT_SERVER_ENTRY'] ?? fileURLToPath(new URL('../../server/dist/lsp/entry.js', import.meta.url));
+// By default the single-file bundle that `pnlint lsp --stdio` runs (npm run build makes it).
+const BUNDLED_ENTRY = fileURLToPath(new URL('../../server/dist/bundle/lsp.mjs', import.meta.url));
+const SERVER_ENTRY =
+  process.env['PNLINT_SERVER_ENTRY'] ?? (existsSync(BUNDLED_ENTRY) ? BUNDLED_ENTRY : fileURLToPath(new URL('../../server/dist/lsp/entry.js', import.meta.url)));
 /** Extra node flags for the server, to profile it. */
 const SERVER_FLAGS = (process.env['PNLINT_BENCH_SERVER_FLAGS'] ?? '').split(/\s+/).filter(Boolean);
 const SETTINGS = { debounceMilliseconds: 0 };
