@@ -2,8 +2,9 @@
 // 2,000-diode board (as built, and with every LED reversed). Figures: the CLI as a
 // user runs it (a fresh Node process, so it includes Node's start-up), the shared
 // analysis pipeline in process (what the language server pays per check, fixes
-// included), and the checks alone (checkCircuit on the elaborated circuit) in CPU
-// time (process.cpuUsage) and wall time. Medians of several repetitions, with the
+// included), the checks alone (checkCircuit on the elaborated circuit) and the fixes
+// alone (attachVerifiedFixes on a finished check of the reversed board) in CPU time
+// (process.cpuUsage) and wall time. Medians of several repetitions, with the
 // machine's load average beside them: on a shared machine wall time follows the load.
 // Reported, not a timed test.
 import { spawnSync } from 'node:child_process';
@@ -20,6 +21,7 @@ const ANALYSIS = join(SERVER, 'dist/analysis.js');
 const NETLIST = join(SERVER, 'dist/netlist/index.js');
 const CHECKS = join(SERVER, 'dist/checks/index.js');
 const SETTINGS = join(SERVER, 'dist/settings.js');
+const FIXES = join(SERVER, 'dist/fixes/index.js');
 const RULES = join(SERVER, 'dist/checks/rules');
 const EXAMPLES = join(SERVER, 'examples');
 /** The file extensions of product.md's `spice-netlist` language. */
@@ -79,6 +81,7 @@ if (!existsSync(CLI) || !existsSync(ANALYSIS)) {
   const { elaborate } = await import(pathToFileURL(NETLIST).href);
   const { checkCircuit } = await import(pathToFileURL(CHECKS).href);
   const { DEFAULT_SETTINGS } = await import(pathToFileURL(SETTINGS).href);
+  const { attachVerifiedFixes } = await import(pathToFileURL(FIXES).href);
   const folder = mkdtempSync(join(tmpdir(), 'pnlint-bench-check-'));
   try {
     const generated = join(folder, `board-${GENERATED_DIODES}-diodes.cir`);
@@ -144,6 +147,26 @@ if (!existsSync(CLI) || !existsSync(ANALYSIS)) {
           `${findings} finding(s), load average ${load()}${cliProblem ? ` (${cliProblem})` : ''}`,
       );
     }
+    // The fixes alone, on a finished check of the reversed board: what the language server's
+    // second phase pays, each fix verified by re-simulation within the fixes' own budget.
+    const reversedCircuit = elaborate(reversed, diskReader.read(reversed) ?? '', diskReader);
+    const reversedCheck = checkCircuit(reversedCircuit, DEFAULT_SETTINGS, undefined);
+    const fixCpu = [];
+    const fixWall = [];
+    let fixRun;
+    for (let index = 0; index < REPETITIONS; index++) {
+      const { value, wall, cpu } = measured(() => attachVerifiedFixes(reversedCheck, reversedCircuit, diskReader, DEFAULT_SETTINGS, undefined));
+      fixRun = value;
+      fixCpu.push(cpu);
+      fixWall.push(wall);
+    }
+    const offered = fixRun.findings.reduce((count, finding) => count + finding.fixes.filter((fix) => !fix.title.startsWith('Ignore')).length, 0);
+    const ignores = fixRun.findings.reduce((count, finding) => count + finding.fixes.filter((fix) => fix.title.startsWith('Ignore')).length, 0);
+    console.log(
+      `fix-${GENERATED_DIODES}-diodes-reversed: fixes ${median(fixCpu).toFixed(1)} ms CPU / ${median(fixWall).toFixed(1)} ms wall (median of ${REPETITIONS}), ` +
+        `${fixRun.statistics.verifications} re-check(s), ${offered} verified fix(es) and ${ignores} ignore fix(es) for ${fixRun.findings.length} finding(s), ` +
+        `${fixRun.statistics.skipped} request(s) past the budget, load average ${load()}`,
+    );
     // What the language server pays on a keystroke for a netlist of about 200 elements (the checks only).
     const small = elaborate(join(folder, 'board-200-elements.cir'), indicatorBoard(SMALL_BOARD_DIODES), diskReader);
     const smallCpu = [];
