@@ -341,21 +341,28 @@ describe.runIf(ngspice)('shared-led-resistor', () => {
 describe('honesty diagnostics: what could not be checked, and why', () => {
   it('an LED whose model is nowhere defined (b20)', () => {
     const found = finding('b20-unknown-model.cir', 'unknown-model');
-    expectAt(found, 'warning', 4);
+    expectAt(found, 'warning', 4, 'DLAMP');
     expect(found.message).toMatch(/LEDMISSING/);
+    // One problem, one finding: not also an unmodeled-element for the same line.
+    expect(report.byFile.get('b20-unknown-model.cir')).toHaveLength(1);
   });
 
-  it('a subcircuit that is defined nowhere (b21) is an error at its line', () => {
-    const found = finding('b21-unknown-subcircuit.cir', 'netlist');
-    expectAt(found, 'error', 3);
+  it('a subcircuit that is defined nowhere (b21): unknown-model at its line, and the LED on its output not checked', () => {
+    const file = 'b21-unknown-subcircuit.cir';
+    // product.md: unknown-model is a model or subcircuit that is not defined.
+    const found = finding(file, 'unknown-model', 'XDRV');
+    expectAt(found, 'warning', 3, 'XDRV');
     expect(found.message).toMatch(/HBRIDGE not found/);
+    expect(report.byFile.get(file)!.filter((f) => f.rule === 'netlist' || f.rule === 'unmodeled-element')).toEqual([]);
+    const skipped = finding(file, 'unknown-model', 'DLED');
+    expectAt(skipped, 'info', 5, 'DLED');
+    expect(skipped.message).toMatch(/not checked.*XDRV.*HBRIDGE/);
   });
 
   it('a JFET current source (b22): not simulated, and the LED it feeds is not checked', () => {
-    // The element's own finding carries no `element` field in the JSON today: found by its message.
     const unmodeled = report.byFile.get('b22-jfet.cir')!.filter((f) => f.rule === 'unmodeled-element' && f.message.startsWith('JSRC '));
     expect(unmodeled).toHaveLength(1);
-    expectAt(unmodeled[0], 'warning', 3);
+    expectAt(unmodeled[0], 'warning', 3, 'JSRC');
     const skipped = finding('b22-jfet.cir', 'unmodeled-element', 'DMUTE');
     expectAt(skipped, 'info', 4, 'DMUTE');
     expect(skipped.message).toMatch(/JSRC/);
@@ -364,7 +371,7 @@ describe('honesty diagnostics: what could not be checked, and why', () => {
   it('a behavioural source (b23): not simulated, and the LED it drives is not checked', () => {
     const unmodeled = report.byFile.get('b23-behavioural.cir')!.filter((f) => f.rule === 'unmodeled-element' && f.message.startsWith('BOUT '));
     expect(unmodeled).toHaveLength(1);
-    expectAt(unmodeled[0], 'warning', 3);
+    expectAt(unmodeled[0], 'warning', 3, 'BOUT');
     expectAt(finding('b23-behavioural.cir', 'unmodeled-element', 'DHEAT'), 'info', 5, 'DHEAT');
   });
 

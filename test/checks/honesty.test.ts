@@ -12,6 +12,37 @@ describe('honesty diagnostics', () => {
     const [unknown] = findingsOf(result, 'unknown-model');
     expect(unknown?.message).toContain('NOSUCH');
     expect(unknown?.message).toContain('not checked');
+    expect(unknown?.element).toBe('D1');
+    // One problem, one finding: the diode left open for want of its model is not also reported as unmodeled.
+    expect(result.findings.filter((finding) => finding.element === 'D1' || finding.message.startsWith('D1 '))).toEqual([unknown]);
+  });
+  it('reports a missing subcircuit as unknown-model, and notes each diode its nodes reach as not checked', () => {
+    const text = `motor board with an undefined driver
+V1 vcc 0 12
+XDRV vcc out 0 HBRIDGE
+R1 out a 1k
+D1 a 0 SIG
+R2 vcc b 1k
+D2 b 0 SIG
+${SIGNAL}
+.end
+`;
+    const result = check(text);
+    const unknown = findingsOf(result, 'unknown-model');
+    const driver = unknown.find((finding) => finding.element === 'XDRV');
+    expect(driver?.severity).toBe('warning');
+    expect(driver?.message).toContain('subcircuit HBRIDGE not found');
+    expect(findingsOf(result, 'netlist')).toEqual([]);
+    expect(findingsOf(result, 'unmodeled-element')).toEqual([]);
+    // D1 hangs on the driver's output: not checked, and it says why. D2 sits across the rail only: checked.
+    const note = unknown.find((finding) => finding.element === 'D1');
+    expect(note?.severity).toBe('info');
+    expect(note?.message).toContain('not checked');
+    expect(note?.message).toContain('XDRV');
+    expect(note?.message).toContain('HBRIDGE');
+    expect(result.diodes.find((diode) => diode.element === 'D1')?.unchecked).toBeDefined();
+    expect(result.diodes.find((diode) => diode.element === 'D2')?.unchecked).toBeUndefined();
+    expect(unknown.some((finding) => finding.element === 'D2')).toBe(false);
   });
   it('skips a diode next to an unmodeled element, saying so', () => {
     const text = `diode beside a behavioural source
@@ -24,6 +55,8 @@ ${SIGNAL}
 `;
     const result = check(text);
     expect(findingsOf(result, 'unmodeled-element').some((finding) => finding.element === 'D1' && finding.message.includes('not checked'))).toBe(true);
+    // The unmodeled element's own finding names it too.
+    expect(findingsOf(result, 'unmodeled-element').find((finding) => finding.message.startsWith('B1 '))?.element).toBe('B1');
     expect(result.diodes[0]!.unchecked).toContain('B1');
   });
   it('reports a floating node and a loop of voltage sources without throwing', () => {

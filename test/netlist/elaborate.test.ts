@@ -186,6 +186,9 @@ describe('models', () => {
     expect(d!.severity).toBe('warning');
     expect(where(d!)).toEqual([1, 7, 1, 12]);
     expect(element(missing, 'D1', 'unmodeled').reason).toBe('model DLAMP not found');
+    // The checks match the diagnostic to its element, and know that a definition is missing.
+    expect(d!.element).toBe('D1');
+    expect(element(missing, 'D1', 'unmodeled').missingDefinition).toBe('DLAMP');
   });
 
   test('MOSFET defaults and levels', () => {
@@ -281,6 +284,21 @@ describe('subcircuits', () => {
       'X2 connects 3 nodes, but subcircuit pair has 2 ports (p q)',
     ]);
     expect(where(problems(bad)[0]!)).toEqual([1, 7, 1, 14]);
+    // product.md: unknown-model is a model or subcircuit that is not defined.
+    expect(problems(bad)[0]!.code).toBe('unknown-model');
+    expect(problems(bad)[0]!.element).toBe('X1');
+    // Kept as an element the solver leaves open, on the nodes it was given, so the checks can skip what it touches.
+    const kept = element(bad, 'X1', 'unmodeled');
+    expect(kept.nodes).toEqual(['a', '0']);
+    expect(kept.letter).toBe('X');
+    expect(kept.missingDefinition).toBe('nothere');
+  });
+
+  test('a missing subcircuit inside a subcircuit keeps the hierarchical name and nodes', () => {
+    const nested = elaborateText('t\nX1 in 0 outer\n.subckt outer p q\nXU p mid q inner\nR1 mid q 1k\n.ends\n');
+    const [d] = problems(nested, 'unknown-model');
+    expect(d!.message).toBe('subcircuit inner not found: X1.XU is not checked');
+    expect(element(nested, 'X1.XU', 'unmodeled').nodes).toEqual(['in', 'X1.mid', '0']);
   });
 
   test('a directive inside a subcircuit body gives one entry per instance', () => {

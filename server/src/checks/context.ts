@@ -31,6 +31,8 @@ export interface CheckedDiode {
   heldCharge: DiodeAtCorner[];
   /** Why it was not checked at all (unsolved, next to an unmodeled element); rules skip it. */
   unchecked?: string;
+  /** The honesty rule that reports `unchecked`: unknown-model, unmodeled-element or unsolved-circuit. */
+  uncheckedRule?: 'unknown-model' | 'unmodeled-element' | 'unsolved-circuit';
 }
 
 export interface CheckContext {

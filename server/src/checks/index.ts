@@ -169,7 +169,7 @@ export function checkWith(
   }
   for (const diode of diodes) {
     if (diode.unchecked) {
-      const rule = diode.unchecked.includes('unmodeled') ? 'unmodeled-element' : 'unsolved-circuit';
+      const rule = diode.uncheckedRule ?? 'unsolved-circuit';
       findings.push(makeFinding(rule, 'info', `${diode.element.name} was not checked: ${diode.unchecked}.`, diode.element.location, { element: diode.element.name }));
     }
   }
@@ -287,17 +287,43 @@ function supplyLimits(circuit: Circuit, directives: Directives, config: Workspac
   return limits;
 }
 
+/** An element line's place, for matching a diagnostic to the elements written there. */
+const placeOf = (location: SourceLocation) => `${location.range.start.offset}|${location.uri}`;
+
 function honestyFindings(circuit: Circuit, solves: readonly SolveResult[]): Finding[] {
   const seen = new Set<string>();
   const findings: Finding[] = [];
+  // The solver's unmodeled-element diagnostics name no element: find it by its line and name.
+  let elementsAt: Map<string, Element[]> | undefined; // built when first needed: most circuits have no such diagnostic
+  const elementOf = (diagnostic: NetlistDiagnostic): Element | undefined => {
+    if (!elementsAt) {
+      elementsAt = new Map();
+      for (const element of circuit.elements) {
+        const place = placeOf(element.location);
+        const list = elementsAt.get(place);
+        if (list) list.push(element);
+        else elementsAt.set(place, [element]);
+      }
+    }
+    const candidates = elementsAt.get(placeOf(diagnostic.location));
+    if (!candidates || candidates.length === 1) return candidates?.[0];
+    return candidates.find((element) => diagnostic.message.startsWith(`${element.name} `));
+  };
   const add = (diagnostic: NetlistDiagnostic, corner: string | undefined) => {
     if (!HONESTY_CODES.has(diagnostic.code)) return;
+    let element = diagnostic.element;
+    if (diagnostic.code === 'unmodeled-element' && element === undefined) {
+      const found = elementOf(diagnostic);
+      // A model or subcircuit defined nowhere: its unknown-model diagnostic already says it all.
+      if (found?.type === 'unmodeled' && found.missingDefinition !== undefined) return;
+      element = found?.name;
+    }
     const key = `${diagnostic.code}|${diagnostic.message}|${diagnostic.location.uri}|${diagnostic.location.range.start.offset}`;
     if (seen.has(key)) return;
     seen.add(key);
     const severity = diagnostic.severity;
     const message = corner && corner !== 'nominal' ? `${diagnostic.message} (corner ${corner})` : diagnostic.message;
-    findings.push(makeFinding(diagnostic.code, severity, message, diagnostic.location, { related: diagnostic.related ?? [] }));
+    findings.push(makeFinding(diagnostic.code, severity, message, diagnostic.location, { related: diagnostic.related ?? [], ...(element !== undefined ? { element } : {}) }));
   };
   for (const diagnostic of circuit.diagnostics) add(diagnostic, undefined);
   for (const result of solves) {
@@ -317,16 +343,15 @@ function checkedDiodes(
   options: SolveOptions,
 ): CheckedDiode[] {
   // Nodes that an unmodeled element can move: the checks there would rest on a wrong number.
-  const tainted = new Map<string, string>();
+  const tainted = new Map<string, Element>();
   const reportedUnmodeled = [...circuit.diagnostics, ...solves.flatMap((result) => result.diagnostics)].filter(
     (diagnostic) => diagnostic.code === 'unmodeled-element',
   );
-  const placeOf = (location: SourceLocation) => `${location.range.start.offset}|${location.uri}`;
   const unmodeledPlaces = new Set(reportedUnmodeled.map((diagnostic) => placeOf(diagnostic.location)));
   for (const element of circuit.elements) {
     const unmodeled = element.type === 'unmodeled' || (unmodeledPlaces.size > 0 && unmodeledPlaces.has(placeOf(element.location)));
     if (!unmodeled) continue;
-    for (const node of element.nodes) for (const reached of nodesWithinRails(topology, node)) tainted.set(reached, element.name);
+    for (const node of element.nodes) for (const reached of nodesWithinRails(topology, node)) tainted.set(reached, element);
   }
   const forwardVoltages = new Map<string, number | undefined>();
   const classifications = new Map<string, Classification>();
@@ -367,9 +392,18 @@ function checkedDiodes(
       kindSource = { origin: 'classification', description: classification.reason };
     }
     const diode: CheckedDiode = { element, kind, kindReason, kindSource, ratings: diodeRatings(circuit, element, kind, directives, config), corners, heldCharge: [] };
-    const taintedBy = element.nodes.map((node) => tainted.get(node)).find((name) => name !== undefined);
-    if (taintedBy) diode.unchecked = `its part of the circuit includes the unmodeled element ${taintedBy}`;
-    else if (corners.length === 0) diode.unchecked = 'the circuit did not solve at any corner';
+    const taintedBy = element.nodes.map((node) => tainted.get(node)).find((each) => each !== undefined);
+    if (taintedBy?.type === 'unmodeled' && taintedBy.missingDefinition !== undefined) {
+      const what = taintedBy.letter.toUpperCase() === 'X' ? 'subcircuit' : 'model';
+      diode.unchecked = `its part of the circuit includes ${taintedBy.name}, whose ${what} ${taintedBy.missingDefinition} is not defined`;
+      diode.uncheckedRule = 'unknown-model';
+    } else if (taintedBy) {
+      diode.unchecked = `its part of the circuit includes the unmodeled element ${taintedBy.name}`;
+      diode.uncheckedRule = 'unmodeled-element';
+    } else if (corners.length === 0) {
+      diode.unchecked = 'the circuit did not solve at any corner';
+      diode.uncheckedRule = 'unsolved-circuit';
+    }
     diodes.push(diode);
   }
   return diodes;

@@ -19,6 +19,8 @@ export interface NetlistDiagnostic {
   related?: { location: SourceLocation; message: string }[];
   /** Text edits that would resolve it (e.g. the exact reading of an ambiguous value). */
   suggestions?: { title: string; edits: { location: SourceLocation; newText: string }[] }[];
+  /** The element it is about (hierarchical name), when there is one: the checks' findings carry it. */
+  element?: string;
 }
 
 /** Ground is always the node named `0`; `gnd` (any case) is folded into it. */
@@ -95,6 +97,8 @@ export interface Diode extends ElementBase {
   model: Model;
   /** Area factor, with `m=` (devices in parallel) folded in: at DC, m diodes in parallel are one diode of m times the area. */
   area: number;
+  /** `m=`: how many parts in parallel this one line stands for (default 1); ratings apply to each part. Already folded into `area`. */
+  multiplier?: number;
   off: boolean;
   /** Instance temperature in °C, when given (`temp=`, or `dtemp=` added to the circuit's). */
   temperature: number | undefined;
@@ -107,8 +111,18 @@ export interface Bjt extends ElementBase { type: 'Q'; model: Model; area: number
 export interface Mosfet extends ElementBase { type: 'M'; model: Model; width: number; length: number; multiplier: number; off: boolean }
 /** K: mutual inductance; no effect at DC. */
 export interface Coupling extends ElementBase { type: 'K'; inductors: string[]; coefficient: number }
-/** Anything the solver does not simulate (JFET, transmission line, behavioural source, code model, …). */
-export interface UnmodeledElement extends ElementBase { type: 'unmodeled'; letter: string; reason: string }
+/**
+ * Anything the solver does not simulate (JFET, transmission line, behavioural source, code model, …),
+ * and an element or subcircuit instance whose model or subcircuit is defined nowhere.
+ */
+export interface UnmodeledElement extends ElementBase {
+  type: 'unmodeled';
+  /** `X` for a subcircuit instance. */
+  letter: string;
+  reason: string;
+  /** The model or subcircuit name that is not defined, when that is why (an `unknown-model` diagnostic says so). */
+  missingDefinition?: string;
+}
 
 export type Element =
   | Resistor

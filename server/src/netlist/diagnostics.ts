@@ -4,7 +4,7 @@
 import type { Range, Severity } from '@pnlint/grammar';
 import type { NetlistDiagnostic, SourceLocation } from './circuit.js';
 
-export type DiagnosticExtras = Pick<NetlistDiagnostic, 'related' | 'suggestions'>;
+export type DiagnosticExtras = Pick<NetlistDiagnostic, 'related' | 'suggestions' | 'element'>;
 
 export class DiagnosticSink {
   readonly diagnostics: NetlistDiagnostic[] = [];

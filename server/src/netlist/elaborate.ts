@@ -582,7 +582,21 @@ class Elaborator {
     }
     const definition = this.findSubcircuit(frame, subcircuitName.text);
     if (!definition) {
-      this.sink.error(uri, subcircuitName.range, `subcircuit ${subcircuitName.text} not found: ${frame.prefix}${statement.name.text} is not checked`);
+      const instanceName = frame.prefix + statement.name.text;
+      this.sink.report('warning', 'unknown-model', uri, subcircuitName.range, `subcircuit ${subcircuitName.text} not found: ${instanceName} is not checked`, {
+        element: instanceName,
+      });
+      // Kept as an element the solver leaves open, so that the checks know which diodes it could move.
+      this.elements.push({
+        type: 'unmodeled',
+        letter: 'X',
+        name: instanceName,
+        nodes: positional.map((field) => this.node(frame, field.text)),
+        location: { uri, range: statement.range },
+        instances: frame.instances,
+        reason: `subcircuit ${subcircuitName.text} not found`,
+        missingDefinition: subcircuitName.text,
+      });
       return;
     }
     const ports = definition.statement.ports;

@@ -72,8 +72,10 @@ function split(fields: Field[]): SplitFields {
 // first, rather than spread from a shared base: a spread costs microseconds
 // per element on a 40,000-element netlist, and leaves the object slower to read.
 
-function unmodeled(context: ElementContext, statement: ElementStatement, nodes: string[], reason: string): UnmodeledElement {
-  return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'unmodeled', letter: statement.letter, reason };
+function unmodeled(context: ElementContext, statement: ElementStatement, nodes: string[], reason: string, missingDefinition?: string): UnmodeledElement {
+  const element: UnmodeledElement = { name: context.name, nodes, location: context.location, instances: context.instances, type: 'unmodeled', letter: statement.letter, reason };
+  if (missingDefinition !== undefined) element.missingDefinition = missingDefinition;
+  return element;
 }
 
 /**
@@ -107,7 +109,7 @@ function findModel(
   context: ElementContext,
   statement: ElementStatement,
   field: Field | undefined,
-): { model: Model } | { reason: string } {
+): { model: Model } | { reason: string; missingDefinition?: string } {
   const letter = statement.letter;
   const wanted = MODEL_TYPES_BY_LETTER[letter] ?? [];
   if (!isNodeField(field)) {
@@ -117,8 +119,8 @@ function findModel(
   }
   const model = context.model(field.text);
   if (!model) {
-    context.sink.report('warning', 'unknown-model', context.uri, field.range, `model ${field.text} not found: ${context.name} is not checked`);
-    return { reason: `model ${field.text} not found` };
+    context.sink.report('warning', 'unknown-model', context.uri, field.range, `model ${field.text} not found: ${context.name} is not checked`, { element: context.name });
+    return { reason: `model ${field.text} not found`, missingDefinition: field.text };
   }
   if (!wanted.includes(model.type)) {
     const message = `${model.name} is a ${describeModelType(model.type)} model, which a ${letter} element cannot use: ${context.name} is not checked`;
@@ -443,7 +445,7 @@ function readSwitch(statement: ElementStatement, context: ElementContext): Eleme
     controlSource = context.prefix + control.text;
   }
   const found = findModel(context, statement, positional[index]);
-  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason);
+  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason, found.missingDefinition);
   const initiallyOn = switchState(context, positional.slice(index + 1));
   if (voltageControlled) return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'S', model: found.model, initiallyOn };
   return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'W', model: found.model, controlSource: controlSource!, initiallyOn };
@@ -475,7 +477,7 @@ function readDiode(statement: ElementStatement, context: ElementContext): Elemen
   const nodes = readNodes(context, statement, positional, 2, 'D1 anode cathode MODEL [area]');
   if (!nodes) return undefined;
   const found = findModel(context, statement, positional[2]);
-  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason);
+  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason, found.missingDefinition);
   const areaField = positional[3]?.kind === 'word' && lower(positional[3]) === 'off' ? undefined : positional[3];
   if (areaField) {
     // SPICE3 takes a bare area after the model; ngspice 39 stops on it ("could not find a valid modelname", checked by running it).
@@ -512,7 +514,7 @@ function readBjt(statement: ElementStatement, context: ElementContext): Element 
   const nodes = readNodes(context, statement, positional, nodeCount, 'Q1 collector base emitter [substrate] MODEL [area]');
   if (!nodes) return undefined;
   const found = findModel(context, statement, positional[nodeCount]);
-  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason);
+  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason, found.missingDefinition);
   const after = positional.slice(nodeCount + 1);
   const areaField = after[0] && lower(after[0]) !== 'off' ? after[0] : undefined;
   const area = areaOf(context, areaField, assigns);
@@ -534,7 +536,7 @@ function readMosfet(statement: ElementStatement, context: ElementContext): Eleme
   const nodes = readNodes(context, statement, positional, 4, 'M1 drain gate source bulk MODEL [w= l=]');
   if (!nodes) return undefined;
   const found = findModel(context, statement, positional[4]);
-  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason);
+  if ('reason' in found) return unmodeled(context, statement, nodes, found.reason, found.missingDefinition);
   const model = found.model;
   if (!isSimulatedModel(model)) {
     return unmodeled(context, statement, nodes, `${model.name} is a level ${model.params['level']} MOSFET model; pnlint simulates level 1 only`);
