@@ -56,11 +56,11 @@ export type Verdict =
 /** One analysis' worth of fix building: the original circuit, its findings, and the budget. */
 export class FixSession {
   readonly files: SourceFiles;
-  readonly names: NameRegistry;
   private readonly baseline: KnownFindings;
   private readonly deadline: number;
   private readonly maximumVerifications: number;
   private originalDirectiveProblems: number | undefined;
+  private nameRegistry: NameRegistry | undefined;
 
   constructor(
     readonly circuit: Circuit,
@@ -73,10 +73,15 @@ export class FixSession {
     readonly statistics: FixStatistics = { verifications: 0, rejected: 0, skipped: 0, milliseconds: 0 },
   ) {
     this.files = new SourceFiles(circuit);
-    this.names = NameRegistry.of(circuit, this.files);
     this.baseline = new KnownFindings(baselineFindings, circuit);
     this.deadline = performance.now() + (options.budgetMilliseconds ?? FIX_BUDGET_MILLISECONDS);
     this.maximumVerifications = options.maximumVerifications ?? MAXIMUM_VERIFICATIONS;
+  }
+
+  /** The names already taken in the circuit's files, gathered when a fix first needs a new name. */
+  get names(): NameRegistry {
+    this.nameRegistry ??= NameRegistry.of(this.circuit, this.files);
+    return this.nameRegistry;
   }
 
   /** False once the budget is spent or the analysis is cancelled. */
