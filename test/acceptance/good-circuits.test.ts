@@ -94,6 +94,16 @@ describe('no false alarm on a correct design', () => {
 
 const ngspice = declareNgspiceGate();
 
+describe.runIf(ngspice)('m= is that many parts in parallel, each within its own rating', () => {
+  it('g22: two LEDs as one m=2 line share 33 mA at 5.25 V, 16.5 mA each, inside the 20 mA rule of thumb', () => {
+    // ngspice 39 at the high corner (5 V + 5 %), with m=2 on the line as written.
+    const total = referenceDiodeCurrent(readCircuit('good/g22-led-multiplier.cir'), 'D1', { V5: 'V5 v5 0 DC 5.25' });
+    expect(total).toBeGreaterThan(LED_RULE_OF_THUMB_CURRENT);
+    expect(total / 2).toBeLessThan(LED_RULE_OF_THUMB_CURRENT); // rule of thumb for LEDs, common practice
+    expect(alarms(report.byFile.get('g22-led-multiplier.cir')!)).toEqual([]);
+  });
+});
+
 describe.runIf(ngspice)('directives and pnlint.json decide the verdict', () => {
   it('g21 without its pnlint.json: the 20 mA rule of thumb applies and the LED is over it', () => {
     const netlist = readCircuit('good/config-folder/g21-config-ratings.cir');

@@ -167,6 +167,9 @@ describe('models', () => {
   test('instance fields: area, m, off; a 4th bipolar word is the substrate unless it names a model', () => {
     const d2 = element(circuit, 'D2', 'D');
     expect(d2.area).toBe(6); // area 2 × m 3: ngspice 39 reports @d[area] = 6 for area=2 m=3
+    // …and m alone is kept, since a part's ratings apply to each of the m parts in parallel.
+    expect(d2.multiplier).toBe(3);
+    expect(element(circuit, 'D1', 'D').multiplier).toBeUndefined();
     // ngspice 39 stops on the bare area ("could not find a valid modelname"): a warning says so.
     expect(problems(circuit).map((d) => d.message)).toContain('ngspice does not accept a bare area on a diode line; write area=2');
     expect(d2.off).toBe(true);

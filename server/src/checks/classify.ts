@@ -5,6 +5,7 @@
 import type { Circuit, CurrentSource, Diode } from '../netlist/circuit.js';
 import type { SolveOptions } from '../sim/types.js';
 import { formatQuantity } from '../units.js';
+import { partsInParallel } from './ratings.js';
 import type { Solver } from './solver.js';
 import type { DiodeKind } from './vocabulary.js';
 
@@ -40,7 +41,8 @@ export function probeForwardVoltage(
 ): number | undefined {
   const place = { location: diode.location, instances: [] };
   const source: CurrentSource = { type: 'I', name: 'Iprobe', nodes: ['0', 'anode'], dc: CLASSIFICATION_CURRENT, waveform: undefined, ...place };
-  const probe: Diode = { ...diode, name: 'Dprobe', nodes: ['anode', '0'], off: false, instances: [] };
+  // One part of an `m=` line: the forward voltage at a few mA is a property of the part.
+  const probe: Diode = { ...diode, name: 'Dprobe', nodes: ['anode', '0'], off: false, instances: [], area: diode.area / partsInParallel(diode), multiplier: 1 };
   const probeCircuit: Circuit = {
     uri: circuit.uri,
     title: undefined,

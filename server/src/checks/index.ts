@@ -14,7 +14,7 @@ import { readDirectives, type Directives } from './directives.js';
 import { defaultSolver } from './engine.js';
 import { makeFinding } from './finding.js';
 import type { FixProvider, FixRequest, TheveninView } from './fix-request.js';
-import { declaredKind, describeRating, diodeRatings, resistorRatings, type ResistorRatings } from './ratings.js';
+import { declaredKind, describeRating, diodeRatings, partsInParallel, resistorRatings, type ResistorRatings } from './ratings.js';
 import { RULES } from './rules/index.js';
 import type { Solver } from './solver.js';
 import { applySuppressions } from './suppression.js';
@@ -377,7 +377,7 @@ function checkedDiodes(
       // By the model itself: two subcircuit instances may each hold a model of the same name.
       let modelId = modelIds.get(element.model);
       if (modelId === undefined) modelIds.set(element.model, (modelId = modelIds.size));
-      const probeKey = `${modelId}|${element.area}|${element.temperature ?? ''}`;
+      const probeKey = `${modelId}|${element.area / partsInParallel(element)}|${element.temperature ?? ''}`;
       // Cancelled: the check's result is thrown away, so the probe solve is not worth starting.
       if (!forwardVoltages.has(probeKey) && !options.cancellation?.isCancellationRequested) {
         forwardVoltages.set(probeKey, probeForwardVoltage(circuit, element, solve, options));
@@ -484,16 +484,17 @@ function diodeReport(diode: CheckedDiode, plans: readonly CornerPlan[], solves: 
   return report;
 }
 
-/** How much of each rating the diode uses at one operating point. */
+/** How much of each rating the diode uses at one operating point (currents and powers per part, for `m=` parts in parallel). */
 function margins(diode: CheckedDiode, point: DiodeOperatingPoint): MarginReport[] {
   const result: MarginReport[] = [];
   const add = (key: DiodeRatingKey, used: number) => {
     const limit = diode.ratings[key]?.value;
     if (limit !== undefined && limit > 0) result.push({ key, used, limit, fraction: used / limit });
   };
-  if (point.current > 0) add('if', point.current);
+  const parts = partsInParallel(diode.element);
+  if (point.current > 0) add('if', point.current / parts);
   if (point.voltage < 0 && diode.kind !== 'zener') add('vrrm', -point.voltage);
-  if (diode.kind === 'zener' && point.current < 0) add('izm', -point.current);
-  add('pd', Math.abs(point.power));
+  if (diode.kind === 'zener' && point.current < 0) add('izm', -point.current / parts);
+  add('pd', Math.abs(point.power) / parts);
   return result;
 }

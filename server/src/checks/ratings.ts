@@ -177,3 +177,16 @@ function ratingText(key: RatingKey, rated: RatedValue): string {
   const joined = source.startsWith('from ') ? ` ${source}` : ` (${source})`;
   return `${symbol} ${value}${joined}`;
 }
+
+/** How many parts in parallel one diode line stands for (`m=`, 1 when not given): a datasheet rating applies to each part. */
+export function partsInParallel(diode: Diode): number {
+  const multiplier = diode.multiplier;
+  return multiplier !== undefined && multiplier > 0 ? multiplier : 1;
+}
+
+/** A current or power of the whole line as each part carries it: "16.5 mA per part, m=2 (32.9 mA in all)", or "32.9 mA" for one part. */
+export function formatPerPart(diode: Diode, total: number, unit: 'A' | 'W'): string {
+  const parts = partsInParallel(diode);
+  if (parts === 1) return formatQuantity(total, unit);
+  return `${formatQuantity(total / parts, unit)} per part, m=${parts} (${formatQuantity(total, unit)} in all)`;
+}

@@ -97,7 +97,11 @@ export interface Diode extends ElementBase {
   model: Model;
   /** Area factor, with `m=` (devices in parallel) folded in: at DC, m diodes in parallel are one diode of m times the area. */
   area: number;
-  /** `m=`: how many parts in parallel this one line stands for (default 1); ratings apply to each part. Already folded into `area`. */
+  /**
+   * `m=`: how many parts in parallel this one line stands for (undefined: 1). Already folded
+   * into `area` for the solver; the checks divide current and power by it, since a part's
+   * ratings apply to each part.
+   */
   multiplier?: number;
   off: boolean;
   /** Instance temperature in °C, when given (`temp=`, or `dtemp=` added to the circuit's). */

@@ -453,8 +453,11 @@ function readSwitch(statement: ElementStatement, context: ElementContext): Eleme
 
 // ------------------------------------------------------------ D, Q, M, J
 
-/** `m=` on a diode or bipolar transistor: that many devices in parallel, which at DC is the same as multiplying the area. */
-function areaOf(context: ElementContext, positionalArea: Field | undefined, assigns: SplitFields['assigns']): number | undefined {
+/**
+ * `m=` on a diode or bipolar transistor: that many devices in parallel, which at DC is the same
+ * as multiplying the area. `area` has the multiplier folded in; `multiplier` is `m` alone.
+ */
+function areaOf(context: ElementContext, positionalArea: Field | undefined, assigns: SplitFields['assigns']): { area: number; multiplier: number } | undefined {
   const areaField = assigns.get('area')?.value ?? positionalArea;
   const area = areaField ? context.value(areaField, '') : 1;
   const multiplier = optionalNumber(context, assigns.get('m')?.value) ?? 1;
@@ -463,7 +466,7 @@ function areaOf(context: ElementContext, positionalArea: Field | undefined, assi
     context.sink.error(context.uri, (areaField ?? assigns.get('m'))!.range, `the area and the multiplier m must be positive`);
     return undefined;
   }
-  return area * multiplier;
+  return { area: area * multiplier, multiplier };
 }
 
 /** True when a field from `start` on is the word `flag`. */
@@ -483,8 +486,8 @@ function readDiode(statement: ElementStatement, context: ElementContext): Elemen
     // SPICE3 takes a bare area after the model; ngspice 39 stops on it ("could not find a valid modelname", checked by running it).
     context.sink.warning(context.uri, areaField.range, `ngspice does not accept a bare area on a diode line; write area=${fieldText(areaField)}`);
   }
-  const area = areaOf(context, areaField, assigns);
-  if (area === undefined) return undefined;
+  const sized = areaOf(context, areaField, assigns);
+  if (sized === undefined) return undefined;
   const temperatureField = assigns.get('temp')?.value;
   const offset = optionalNumber(context, assigns.get('dtemp')?.value);
   const temperature = temperatureField ? context.value(temperatureField, '') : offset !== undefined ? context.temperature + offset : undefined;
@@ -496,10 +499,11 @@ function readDiode(statement: ElementStatement, context: ElementContext): Elemen
     instances: context.instances,
     type: 'D',
     model: found.model,
-    area,
+    area: sized.area,
     off: hasFlag(positional, 'off', 3),
     temperature,
   };
+  if (sized.multiplier !== 1) diode.multiplier = sized.multiplier;
   if (initialCondition !== undefined) diode.initialCondition = initialCondition;
   return diode;
 }
@@ -517,9 +521,9 @@ function readBjt(statement: ElementStatement, context: ElementContext): Element 
   if ('reason' in found) return unmodeled(context, statement, nodes, found.reason, found.missingDefinition);
   const after = positional.slice(nodeCount + 1);
   const areaField = after[0] && lower(after[0]) !== 'off' ? after[0] : undefined;
-  const area = areaOf(context, areaField, assigns);
-  if (area === undefined) return undefined;
-  return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'Q', model: found.model, area, off: hasFlag(after, 'off') };
+  const sized = areaOf(context, areaField, assigns);
+  if (sized === undefined) return undefined;
+  return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'Q', model: found.model, area: sized.area, off: hasFlag(after, 'off') };
 }
 
 function readMosfet(statement: ElementStatement, context: ElementContext): Element | undefined {

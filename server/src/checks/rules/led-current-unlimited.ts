@@ -5,7 +5,7 @@ import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext, type CheckedDiode } from '../context.js';
 import { makeFinding } from '../finding.js';
-import { describeRating } from '../ratings.js';
+import { describeRating, formatPerPart, partsInParallel } from '../ratings.js';
 import { seriesResistors } from '../topology.js';
 import { CONDUCTION_THRESHOLD, forwardCurrent, LED_CURRENT_CHANGE_LIMIT, LED_FORWARD_VOLTAGE_SPREAD, worstCorner } from '../thresholds.js';
 import { cornerSources, seriesResistorsOf } from './related.js';
@@ -22,11 +22,13 @@ export const ledCurrentUnlimited: Rule = {
       const worst = worstCorner(diode, forwardCurrent);
       if (!worst || worst.value < CONDUCTION_THRESHOLD) continue; // dark at every corner: reversed-diode's business
       const name = diode.element.name;
-      const current = formatQuantity(worst.value, 'A');
+      const current = formatPerPart(diode.element, worst.value, 'A');
       const where = atCorner(worst.at.plan);
       const related = [...cornerSources(context, worst.at.plan), ...seriesResistorsOf(context, diode)];
       const rating = diode.ratings.if;
-      const overRating = rating !== undefined && worst.value > rating.value;
+      // `m=` parts in parallel share the current; the rating is each part's.
+      const parts = partsInParallel(diode.element);
+      const overRating = rating !== undefined && worst.value / parts > rating.value;
       // Resistance in series adds to what the LED sees: enough of it settles the question without a probe solve.
       const seriesResistance = seriesResistors(context.topology, diode.element).reduce((sum, resistor) => sum + resistor.resistance, 0);
       const smallestLimit = LED_FORWARD_VOLTAGE_SPREAD / (LED_CURRENT_CHANGE_LIMIT * worst.value);
@@ -37,7 +39,7 @@ export const ledCurrentUnlimited: Rule = {
         rule: ID,
         diode: name,
         seriesResistors: seriesResistors(context.topology, diode.element).map((resistor) => resistor.name),
-        maximumCurrent: rating?.value ?? Number.POSITIVE_INFINITY,
+        maximumCurrent: rating ? rating.value * parts : Number.POSITIVE_INFINITY,
         governingCorner: worst.at.plan.corner.name,
         ...(thevenin ? { thevenin } : {}),
       };

@@ -7,7 +7,7 @@ import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext } from '../context.js';
 import type { CornerPlan } from '../corners.js';
 import { makeFinding } from '../finding.js';
-import { describeRating } from '../ratings.js';
+import { describeRating, formatPerPart, partsInParallel } from '../ratings.js';
 import { feedResistors, seriesResistors } from '../topology.js';
 import { worstCorner } from '../thresholds.js';
 import { kindNameOpening } from '../vocabulary.js';
@@ -40,13 +40,14 @@ export const overdissipation: Rule = {
         rating = { value: limit, source: diode.ratings.izm.source };
         limitText = `${formatQuantity(limit, 'W')} (${describeRating('izm', diode.ratings.izm)} × ${describeRating('vz', diode.ratings.vz)})`;
       }
-      if (!rating || worst.value <= rating.value) continue;
+      // `m=` parts in parallel share the power; the rating is each part's.
+      if (!rating || worst.value / partsInParallel(diode.element) <= rating.value) continue;
       const typical = rating.source.origin === 'library';
       findings.push(
         makeFinding(
           ID,
           typical ? 'warning' : 'error',
-          `${kindNameOpening(diode.kind)} ${diode.element.name} dissipates ${formatQuantity(worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
+          `${kindNameOpening(diode.kind)} ${diode.element.name} dissipates ${formatPerPart(diode.element, worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
           diode.element.location,
           { element: diode.element.name, related: cornerSources(context, worst.at.plan) },
         ),

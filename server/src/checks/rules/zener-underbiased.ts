@@ -8,7 +8,7 @@ import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext, type CheckedDiode, type DiodeAtCorner } from '../context.js';
 import { splitResistorCorner } from '../corners.js';
 import { makeFinding } from '../finding.js';
-import { describeRating } from '../ratings.js';
+import { describeRating, formatPerPart, partsInParallel } from '../ratings.js';
 import { feedResistors } from '../topology.js';
 import { CONDUCTION_THRESHOLD, worstCorner } from '../thresholds.js';
 import { forwardBiasedZener } from '../zener-forward-bias.js';
@@ -36,9 +36,11 @@ export const zenerUnderbiased: Rule = {
       if (!worst) continue;
       worst = splitTolerances(context, diode, worst) ?? worst;
       const reverseCurrent = -worst.value;
-      if (reverseCurrent >= knee.value) continue;
+      // `m=` parts in parallel share the current; each part needs its own IZK.
+      const parts = partsInParallel(diode.element);
+      if (reverseCurrent / parts >= knee.value) continue;
       const name = diode.element.name;
-      const shown = reverseCurrent > 0 ? `only ${formatQuantity(reverseCurrent, 'A')}` : 'no reverse current';
+      const shown = reverseCurrent > 0 ? `only ${formatPerPart(diode.element, reverseCurrent, 'A')}` : 'no reverse current';
       const finding = makeFinding(
         ID,
         'warning',
@@ -65,8 +67,8 @@ export const zenerUnderbiased: Rule = {
           rule: ID,
           diode: name,
           seriesResistors: feedResistors(context.topology, diode.element, nodesAt(context, worst.at)).map((resistor) => resistor.name),
-          minimumCurrent: knee.value,
-          maximumCurrent,
+          minimumCurrent: knee.value * parts,
+          maximumCurrent: maximumCurrent * parts,
           zenerVoltage,
           governingCorner: worst.at.plan.corner.name,
         },
