@@ -7,8 +7,9 @@
 // and temperature scaling. Its `showmod` prints IS = 1e-28 for a card with IS=1e-30; its
 // operating points then follow the exact series-diode solution with IS = 1e-28; and with
 // `.options epsmin=1e-40` (an ngspice option whose default is 1e-28) it follows the card as
-// written. pnlint applies the same floor (MINIMUM_SATURATION_CURRENT in diode.ts), so that
-// its numbers agree with the engine its users compare against.
+// written. pnlint applies the same floor (MINIMUM_SATURATION_CURRENT in diode.ts, or the
+// netlist's own `.options epsmin`), so that its numbers agree with the engine its users
+// compare against.
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -216,5 +217,56 @@ describe('the saturation-current floor', () => {
     expect(Math.abs(floored.values.get('v(a)')! - pointOf(singleLoop(1e-30, 2)).nodes.a)).toBeLessThanOrEqual(
       allowedDifference(floored.values.get('v(a)')!, VOLTAGE_TOLERANCE),
     );
+  });
+});
+
+// ---- `.options epsmin`: pnlint takes the floor from the netlist as ngspice 39 does.
+
+/**
+ * An LED card below the floor, a mistyped negative IS and a tiny-IS zener, each in its own
+ * loop; the `.options` line sets epsmin (or leaves ngspice's default). Seen with ngspice 39
+ * (`showmod`): each model's IS becomes max(IS, epsmin), for epsmin 1e-40, 1e-26 and 0 alike.
+ */
+function epsminNetlist(epsmin: string): string {
+  return `LED cards under a chosen saturation-current floor
+V1 s1 0 12.6
+R1 s1 a1 30
+D1 a1 k1 DLEDCARD
+VAM1 k1 0 0
+V2 s2 0 12.6
+R2 s2 a2 1k
+D2 a2 k2 DMISTYPED
+VAM2 k2 0 0
+V3 s3 0 12.6
+R3 s3 a3 2.2k
+D3 k3 a3 DTINYZENER
+VAM3 k3 0 0
+.model DLEDCARD D(IS=1e-30 N=2 RS=2)
+.model DMISTYPED D(IS=-1e-20 N=2)
+.model DTINYZENER D(IS=1e-32 N=1.5 BV=5.1 IBV=1m)
+${TIGHT}${epsmin ? ` epsmin=${epsmin}` : ''}
+.end
+`;
+}
+
+describe.runIf(ngspiceRuns)('.options epsmin against ngspice 39', () => {
+  for (const epsmin of ['', '1e-40', '1e-26', '0']) {
+    test(epsmin ? `epsmin=${epsmin}` : 'epsmin left at its default', () => {
+      expectAgreement(epsminNetlist(epsmin)); // ngspice 39
+    });
+  }
+
+  test('with epsmin=1e-40 the LED card follows its own IS, at the default it is raised to 1e-28', () => {
+    const lowered = runNgspiceOperatingPoint(epsminNetlist('1e-40'), { vectors: ['v(a1)'] });
+    const floored = runNgspiceOperatingPoint(epsminNetlist(''), { vectors: ['v(a1)'] });
+    expect(lowered.failure).toBeUndefined();
+    expect(floored.failure).toBeUndefined();
+    const pnlintLowered = pointOf(epsminNetlist('1e-40')).nodes.a1;
+    const pnlintFloored = pointOf(epsminNetlist('')).nodes.a1;
+    // ngspice 39, to VOLTAGE_TOLERANCE (1 µV + 1e-6 relative).
+    expect(Math.abs(pnlintLowered - lowered.values.get('v(a1)')!)).toBeLessThanOrEqual(allowedDifference(lowered.values.get('v(a1)')!, VOLTAGE_TOLERANCE));
+    expect(Math.abs(pnlintFloored - floored.values.get('v(a1)')!)).toBeLessThanOrEqual(allowedDifference(floored.values.get('v(a1)')!, VOLTAGE_TOLERANCE));
+    // The two differ by about N·Vt·ln(1e-28/1e-30) ≈ 0.24 V for N = 2 (Shockley's equation), far above the tolerance.
+    expect(pnlintLowered - pnlintFloored).toBeGreaterThan(0.2);
   });
 });

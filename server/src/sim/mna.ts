@@ -49,6 +49,8 @@ export interface CornerConditions {
   sourceValue(elementName: string, netlistValue: number): number;
   gmin: number;
   relativeTolerance: number;
+  /** A diode card's IS below this is raised to it, as ngspice 39 does (its `.options epsmin`, default 1e-28 A). */
+  minimumSaturationCurrent: number;
 }
 
 export interface LoadContext {

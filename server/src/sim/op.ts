@@ -16,6 +16,7 @@ import {
   ZERO_CELSIUS_IN_KELVIN,
 } from './constants.js';
 import { compileCircuit, type CompiledCircuit } from './compile.js';
+import { MINIMUM_SATURATION_CURRENT } from './devices/diode.js';
 import { circuitLocation } from './diagnose.js';
 import type { CornerConditions, DeviceResultSink } from './mna.js';
 import { NewtonState, newtonIterate, type NewtonOutcome, type NewtonSettings } from './newton.js';
@@ -94,7 +95,18 @@ function conditionsOf(circuit: Circuit, corner: Corner, tolerances: Tolerances):
     sourceValue: (name, value) => sourceOf(name) ?? value,
     gmin: tolerances.gmin,
     relativeTolerance: tolerances.relativeTolerance,
+    minimumSaturationCurrent: minimumSaturationCurrentOf(circuit.options ?? {}),
   };
+}
+
+/**
+ * ngspice 39's floor under a diode card's IS: `.options epsmin` when it is a finite number of
+ * at least 0, else its default. ngspice 39 takes max(IS, epsmin) for any epsmin (showmod); a
+ * negative epsmin would only let a mistyped negative IS through, which no solve survives.
+ */
+function minimumSaturationCurrentOf(options: Record<string, number>): number {
+  const value = options.epsmin;
+  return typeof value === 'number' && Number.isFinite(value) && value >= 0 ? value : MINIMUM_SATURATION_CURRENT;
 }
 
 type Method = OperatingPoint['method'];

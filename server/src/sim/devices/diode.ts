@@ -21,12 +21,14 @@ export const BREAKDOWN_CURRENT_OVER_SATURATION = 10;
 export const OFF_BIAS_THERMAL_VOLTAGES = 3;
 const NO_DIAGNOSTICS: NetlistDiagnostic[] = [];
 /**
- * The smallest saturation current that ngspice 39 gives a diode model: a card's IS below it
- * (LED cards reach 1e-30 to 1e-40) is raised to it, before the area and temperature scaling.
- * Found by experiment with ngspice 39: `showmod` prints IS = 1e-28 for a card with IS=1e-30,
- * and its operating points follow Shockley with IS = 1e-28 (to 1e-11 V over IS 1e-29…1e-40,
- * N 1…4, RS 0 and 5 Ω, −40…125 °C); its `.options epsmin` (default 1e-28) moves the floor.
- * A rule of that engine, not an inaccuracy: its users compare with it, so pnlint follows it.
+ * The smallest saturation current that ngspice 39 gives a diode model by default: a card's IS
+ * below it (LED cards reach 1e-30 to 1e-40) is raised to it, before the area and temperature
+ * scaling. Found by experiment with ngspice 39: `showmod` prints IS = 1e-28 for a card with
+ * IS=1e-30, and its operating points follow Shockley with IS = 1e-28 (to 1e-11 V over IS
+ * 1e-29…1e-40, N 1…4, RS 0 and 5 Ω, −40…125 °C). Its `.options epsmin` sets the floor
+ * instead (showmod then prints max(IS, epsmin), for epsmin 1e-40, 1e-26 and 0 alike); the
+ * corner conditions carry it (minimumSaturationCurrent). A rule of that engine, not an
+ * inaccuracy: its users compare with it, so pnlint follows it.
  */
 export const MINIMUM_SATURATION_CURRENT = 1e-28;
 /** ngspice's bisection of the breakdown knee stops after this many iterations (ngspice 39 diotemp.c). */
@@ -76,12 +78,12 @@ export function diodeParameters(element: DiodeElement): DiodeParameters {
 }
 
 /**
- * The model's saturation current as the solver uses it: raised to MINIMUM_SATURATION_CURRENT as
- * ngspice 39 does, a negative (mistyped) IS included. IS = 0 alone stays as written, an open
- * junction with only gmin across it, where ngspice 39 would use the floor too.
+ * The model's saturation current as the solver uses it: raised to `minimum` (ngspice 39's
+ * epsmin floor) as ngspice 39 does, a negative (mistyped) IS included. IS = 0 alone stays as
+ * written, an open junction with only gmin across it, where ngspice 39 would use the floor too.
  */
-export function effectiveSaturationCurrent(modelSaturationCurrent: number): number {
-  return modelSaturationCurrent === 0 ? 0 : Math.max(modelSaturationCurrent, MINIMUM_SATURATION_CURRENT);
+export function effectiveSaturationCurrent(modelSaturationCurrent: number, minimum: number = MINIMUM_SATURATION_CURRENT): number {
+  return modelSaturationCurrent === 0 ? 0 : Math.max(modelSaturationCurrent, minimum);
 }
 
 export class DiodeDevice implements Device {
@@ -155,7 +157,7 @@ export class DiodeDevice implements Device {
     const ratio = this.temperature / nominal;
     // Saturation current's temperature law (SPICE3 user's manual): Is(T) = Is·(T/Tnom)^(XTI/N)·exp((T/Tnom − 1)·EG/(N·Vt)).
     this.saturationCurrent =
-      effectiveSaturationCurrent(p.saturationCurrent) * area * Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
+      effectiveSaturationCurrent(p.saturationCurrent, conditions.minimumSaturationCurrent) * area * Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
     this.criticalVoltage = criticalVoltage(vte, this.saturationCurrent);
     this.seriesConductance = p.seriesResistance > 0 ? area / p.seriesResistance : 0;
     this.forwardKneeCurrent = p.forwardKneeCurrent * area;
