@@ -15,6 +15,7 @@ export {
   MAXIMUM_TARGET_REDUCTIONS,
   MAXIMUM_CANDIDATES_PER_FINDING,
   UNBOUNDED_WINDOW_SPAN,
-  preferredValuesInside,
+  preferredValuesFromTop,
+  toleranceMargin,
   type ResistanceWindow,
 } from './values.js';

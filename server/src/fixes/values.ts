@@ -1,6 +1,6 @@
 // Choosing a resistor's value: the margins a fix aims for, the window a value must fall in,
 // and the preferred values (IEC 60063) to try, in the order they are tried.
-import { preferredValuesBetween } from '../preferred.js';
+import { preferredValuesBetween, SERIES_TOLERANCE } from '../preferred.js';
 import type { PreferredSeries } from '../settings.js';
 
 /**
@@ -22,6 +22,15 @@ export const MAXIMUM_CANDIDATES_PER_FINDING = 3;
 /** With no lower bound (no current limit above), values are looked for within a decade below the upper bound (ours). */
 export const UNBOUNDED_WINDOW_SPAN = 0.1;
 
+/**
+ * The tolerance a chosen value must keep inside its window: the resistor's own rating
+ * (a `tol=` directive, pnlint.json or the setting) when it has one, else the tolerance its
+ * preferred series is made for (IEC 60063: E24 ±5 %, E96 ±1 %), the part a fitter would buy.
+ */
+export function toleranceMargin(ratedTolerance: number | undefined, series: PreferredSeries): number {
+  return ratedTolerance !== undefined && ratedTolerance > 0 ? ratedTolerance : SERIES_TOLERANCE[series];
+}
+
 /** A window of acceptable resistances, with the corners that set each end. */
 export interface ResistanceWindow {
   minimum: number;
@@ -32,20 +41,14 @@ export interface ResistanceWindow {
 }
 
 /**
- * The preferred values inside a window, taken at their tolerance (value × (1 ± tolerance)
- * stays inside): the one nearest the window's geometric middle (most margin both ways), then
- * the ones above it (less current, less power), then those below.
+ * The preferred values inside a window with the part's tolerance at both ends (value × (1 +
+ * tolerance) ≤ maximum and value × (1 − tolerance) ≥ minimum), largest first: a zener's or an
+ * LED's feed resistor is best near the top of its window, where it dissipates least and draws
+ * least from the supply, and the tolerance is the margin kept below the top.
  */
-export function preferredValuesInside(window: ResistanceWindow, tolerance: number, series: PreferredSeries, count: number): number[] {
+export function preferredValuesFromTop(window: ResistanceWindow, tolerance: number, series: PreferredSeries, count: number): number[] {
   const high = window.maximum / (1 + tolerance);
   const low = window.minimum > 0 ? window.minimum / (1 - tolerance) : high * UNBOUNDED_WINDOW_SPAN;
   if (!(high > 0) || !(high >= low)) return [];
-  const middle = Math.sqrt(low * high);
-  const inside = preferredValuesBetween(low, high, series);
-  if (inside.length === 0) return [];
-  let nearest = 0;
-  inside.forEach((value, index) => {
-    if (Math.abs(Math.log(value / middle)) < Math.abs(Math.log(inside[nearest]! / middle))) nearest = index;
-  });
-  return [...inside.slice(nearest), ...inside.slice(0, nearest).reverse()].slice(0, count);
+  return preferredValuesBetween(low, high, series).reverse().slice(0, count);
 }

@@ -1,11 +1,14 @@
 // Re-valuing a zener's feed resistor inside its window. The textbook shunt-regulator window
 // (e.g. Sedra & Smith, Microelectronic Circuits) runs from minimum supply and maximum load,
-// Rmax = (Vs,min − Vz) / (Iz,min + IL,max), to maximum supply and minimum load,
-// Rmin = (Vs,max − Vz) / (Iz,max + IL,min) (with no load at minimum, IL,min = 0, the form
-// Rmin = (Vs,max − Vz) / Iz,max). Here each corner is solved with the zener held at its own
-// voltage at Iz,min (for Rmax) and at Iz,max (for Rmin), which gives every corner's Vs, IL
-// and supply resistance at once: the window is the intersection over the corners. When it is
-// empty, no value can fix the finding, and its message says so.
+// Rmax = (Vs,min − Vz) / (Iz,min + IL,max), to maximum supply and no load,
+// Rmin = (Vs,max − Vz) / Iz,max, where Iz,max is the zener's rated maximum current (IZM, or
+// PD / VZ). The light-load end takes the load as absent, as the textbook's form does: a load
+// that is unplugged or switched off must not cook the zener. Each corner is solved with the
+// zener held at its regulating voltage (its own voltage at Iz,min), which gives every corner's
+// Vs, IL and supply resistance at once; the window is the intersection over the corners.
+// The value chosen is the largest preferred value whose tolerance stays inside the window:
+// near the top, the zener and the resistor dissipate least and the supply is drained least.
+// When the window is empty, no value can fix the finding, and its message says so.
 import type { CornerPlan, FixRequest } from '../checks/index.js';
 import { atCorner } from '../checks/context.js';
 import { buildTopology, currentNodes } from '../checks/topology.js';
@@ -13,11 +16,13 @@ import type { Circuit, Diode, Resistor } from '../netlist/circuit.js';
 import type { Finding, Fix } from '../findings.js';
 import { formatPercent, formatQuantity } from '../units.js';
 import { readDirectives } from '../checks/directives.js';
-import { resistorRatings } from '../checks/ratings.js';
+import { diodeRatings, resistorRatings } from '../checks/ratings.js';
+import type { RatedValue } from '../checks/directives.js';
+import { RATING_SYMBOLS, type DiodeRatingKey } from '../checks/vocabulary.js';
 import { diodeVoltageAt, measureResistorResponse, type ResistorResponse } from './probes.js';
-import { elementNamed, resistorPower, reverseCurrentRange, scaleAt, solveOptionsOf } from './readings.js';
+import { elementNamed, resistorPower, reverseCurrentRange, solveOptionsOf } from './readings.js';
 import { changeResistorValue } from './resistor-lines.js';
-import { MAXIMUM_CANDIDATES_PER_FINDING, preferredValuesInside, RESISTOR_POWER_MARGIN, type ResistanceWindow } from './values.js';
+import { MAXIMUM_CANDIDATES_PER_FINDING, preferredValuesFromTop, RESISTOR_POWER_MARGIN, toleranceMargin, type ResistanceWindow } from './values.js';
 import type { FixSession } from './verify.js';
 
 type ZenerWindowRequest = Extract<FixRequest, { kind: 'zener-window' }>;
@@ -31,8 +36,11 @@ export interface ZenerFixes {
   note?: string;
 }
 
+/** The feed resistor's window in ohms as fitted (not yet narrowed by its tolerance). */
 export interface ZenerWindow extends ResistanceWindow {
   resistor: Resistor;
+  /** The voltage the zener was held at: its own voltage at its minimum regulating current (V). */
+  zenerVoltage: number;
 }
 
 export function zenerWindowFixes(session: FixSession, request: ZenerWindowRequest, finding: Finding, plans: readonly CornerPlan[]): ZenerFixes {
@@ -41,16 +49,21 @@ export function zenerWindowFixes(session: FixSession, request: ZenerWindowReques
   const window = zenerWindow(session, zener, request, plans);
   if (!window || !Number.isFinite(window.maximum)) return { fixes: [] };
   const name = window.resistor.name;
-  const range = `${formatQuantity(Math.max(window.minimum, 0), 'Ω')} to ${formatQuantity(window.maximum, 'Ω')}`;
+  const range = describeWindow(window, typicalBounds(session, zener), Number.isFinite(request.maximumCurrent));
   if (!(window.maximum > 0) || window.maximum < window.minimum) {
     return { fixes: [], note: ` No value of ${name} can fix this: ${noWindowReason(window, plans, request)}` };
   }
-  // Each corner already takes the resistor at its tolerance, so the window is in nominal values.
-  const values = preferredValuesInside(window, 0, session.settings.preferredSeries, MAXIMUM_CANDIDATES_PER_FINDING);
+  const directives = readDirectives(session.circuit);
+  const resistorRating = resistorRatings(window.resistor, session.settings, directives, session.config);
+  const tolerance = toleranceMargin(resistorRating.tolerance?.value, session.settings.preferredSeries);
+  const values = preferredValuesFromTop(window, tolerance, session.settings.preferredSeries, MAXIMUM_CANDIDATES_PER_FINDING);
   if (values.length === 0) {
-    return { fixes: [], note: ` ${name} would have to lie between ${range}, and no ${session.settings.preferredSeries} value does.` };
+    return {
+      fixes: [],
+      note: ` ${name} would have to lie within ${range}, and no ${session.settings.preferredSeries} value stays inside it at ±${formatPercent(tolerance)}.`,
+    };
   }
-  const powerRating = resistorRatings(window.resistor, session.settings, readDirectives(session.circuit), session.config).power.value;
+  const powerRating = resistorRating.power.value;
   let overPower: number | undefined;
   for (const value of values) {
     const edits = changeResistorValue(session, window.resistor, value);
@@ -86,23 +99,24 @@ export function zenerWindowFixes(session: FixSession, request: ZenerWindowReques
 }
 
 /**
- * The window of the first resistor that feeds the zener at every corner: for each corner,
- * the zener's reverse current is Iz(R) = B + G / (R·scale + Rp) with G = −share · Voc (probes.ts), so
- * Iz ≥ Iz,min gives R ≤ (G / (Iz,min − B) − Rp) / scale and Iz ≤ Iz,max gives
- * R ≥ (G / (Iz,max − B) − Rp) / scale.
+ * The window of the first resistor that feeds the zener at every corner, with the zener held
+ * at its regulating voltage. At each corner the zener's reverse current is
+ * Iz(R) = B + G / (R + Rp), with G = −share · Voc (probes.ts) and B the current the rest of
+ * the circuit gives it (minus the load's draw). Iz ≥ Iz,min gives R ≤ G / (Iz,min − B) − Rp;
+ * with the load taken away (B no lower than 0), Iz ≤ Iz,max gives R ≥ G / (Iz,max − B) − Rp.
+ * The feed resistor itself is replaced by a test source, so a corner's scaling of it does not
+ * enter: the bounds are in ohms as fitted, and other resistors sit at each corner's tolerance.
  */
 export function zenerWindow(session: FixSession, zener: Diode, request: ZenerWindowRequest, plans: readonly CornerPlan[]): ZenerWindow | undefined {
   const options = solveOptionsOf(session);
   const nominal = plans[0]?.corner ?? { name: 'nominal' };
-  // The zener's own voltage at the two ends of its range (reverse currents are negative).
-  const voltageAtKnee = -(diodeVoltageAt(session.circuit, zener, -request.minimumCurrent, nominal, options) ?? -request.zenerVoltage);
-  const hasMaximum = Number.isFinite(request.maximumCurrent) && request.maximumCurrent > request.minimumCurrent;
-  const voltageAtMaximum = hasMaximum ? -(diodeVoltageAt(session.circuit, zener, -request.maximumCurrent, nominal, options) ?? -request.zenerVoltage) : voltageAtKnee;
+  // The zener's own voltage at its minimum regulating current (a reverse current is negative).
+  const zenerVoltage = -(diodeVoltageAt(session.circuit, zener, -request.minimumCurrent, nominal, options) ?? -request.zenerVoltage);
+  const maximumCurrent = Number.isFinite(request.maximumCurrent) && request.maximumCurrent > request.minimumCurrent ? request.maximumCurrent : Number.POSITIVE_INFINITY;
   const corners = plans.map((plan) => plan.corner);
   for (const resistor of feedCandidates(session.circuit, zener, request)) {
-    const atKnee = measureResistorResponse(session.circuit, zener, -voltageAtKnee, resistor, request.minimumCurrent, corners, options);
-    const atMaximum = hasMaximum ? measureResistorResponse(session.circuit, zener, -voltageAtMaximum, resistor, request.minimumCurrent, corners, options) : atKnee;
-    const window = windowOf(resistor, plans, atKnee, atMaximum, request.minimumCurrent, hasMaximum ? request.maximumCurrent : Number.POSITIVE_INFINITY);
+    const responses = measureResistorResponse(session.circuit, zener, -zenerVoltage, resistor, request.minimumCurrent, corners, options);
+    const window = windowOf(resistor, zenerVoltage, plans, responses, request.minimumCurrent, maximumCurrent);
     if (window) return window;
   }
   return undefined;
@@ -110,34 +124,32 @@ export function zenerWindow(session: FixSession, zener: Diode, request: ZenerWin
 
 function windowOf(
   resistor: Resistor,
+  zenerVoltage: number,
   plans: readonly CornerPlan[],
-  atKnee: readonly (ResistorResponse | undefined)[],
-  atMaximum: readonly (ResistorResponse | undefined)[],
+  responses: readonly (ResistorResponse | undefined)[],
   minimumCurrent: number,
   maximumCurrent: number,
 ): ZenerWindow | undefined {
-  const window: ZenerWindow = { resistor, minimum: 0, maximum: Number.POSITIVE_INFINITY, minimumCorner: undefined, maximumCorner: undefined };
+  const window: ZenerWindow = { resistor, zenerVoltage, minimum: 0, maximum: Number.POSITIVE_INFINITY, minimumCorner: undefined, maximumCorner: undefined };
   for (const [index, plan] of plans.entries()) {
-    const knee = atKnee[index];
-    const top = atMaximum[index];
-    if (!knee || !top) return undefined;
-    // Reverse currents: the response is of the forward current, so change sign.
-    const kneeBase = -knee.base;
-    const topBase = -top.base;
-    if (!(-knee.share > 0) || !(-top.share > 0)) return undefined; // the resistor's current does not reach the zener: not its feed
-    const kneeGain = -knee.share * knee.portVoltage;
-    const topGain = -top.share * top.portVoltage;
-    const scale = scaleAt(plan, resistor.name);
-    if (kneeBase < minimumCurrent) {
-      // No drive across the resistor at all (kneeGain ≤ 0): the supply is below the zener voltage, and no value helps.
-      const largest = kneeGain > 0 ? (kneeGain / (minimumCurrent - kneeBase) - knee.portResistance) / scale : 0;
+    const response = responses[index];
+    if (!response) return undefined;
+    // The response is of the forward current; a zener's is a reverse current, so change sign.
+    const base = -response.base;
+    if (!(-response.share > 0)) return undefined; // the resistor's current does not reach the zener: not its feed
+    const gain = -response.share * response.portVoltage;
+    if (base < minimumCurrent) {
+      // No drive across the resistor at all (gain ≤ 0): the supply is below the zener voltage, and no value helps.
+      const largest = gain > 0 ? gain / (minimumCurrent - base) - response.portResistance : 0;
       if (largest < window.maximum) {
         window.maximum = largest;
         window.maximumCorner = plan.corner.name;
       }
     }
     if (Number.isFinite(maximumCurrent)) {
-      const least = topBase >= maximumCurrent ? Number.POSITIVE_INFINITY : topGain > 0 ? (topGain / (maximumCurrent - topBase) - top.portResistance) / scale : 0;
+      // The load taken away: what it drew (a negative base) no longer relieves the zener.
+      const unloaded = Math.max(base, 0);
+      const least = unloaded >= maximumCurrent ? Number.POSITIVE_INFINITY : gain > 0 ? gain / (maximumCurrent - unloaded) - response.portResistance : 0;
       if (least > window.minimum) {
         window.minimum = least;
         window.minimumCorner = plan.corner.name;
@@ -145,6 +157,40 @@ function windowOf(
     }
   }
   return window;
+}
+
+/** Which bounds rest on a typical value rather than the part's own rating (for the title). */
+interface TypicalBounds {
+  /** The rating that sets Iz,max (IZM, or PD), when it is a typical value. */
+  lower?: { key: DiodeRatingKey; rated: RatedValue };
+  /** IZK, when it is a typical value. */
+  upper?: { key: DiodeRatingKey; rated: RatedValue };
+}
+
+function typicalBounds(session: FixSession, zener: Diode): TypicalBounds {
+  const ratings = diodeRatings(session.circuit, zener, 'zener', readDirectives(session.circuit), session.config);
+  const typical = (rated: RatedValue | undefined) => rated !== undefined && (rated.source.origin === 'library' || rated.source.origin === 'rule-of-thumb');
+  const bounds: TypicalBounds = {};
+  const limit: DiodeRatingKey = ratings.izm ? 'izm' : 'pd';
+  if (typical(ratings[limit])) bounds.lower = { key: limit, rated: ratings[limit]! };
+  if (typical(ratings.izk)) bounds.upper = { key: 'izk', rated: ratings.izk! };
+  return bounds;
+}
+
+/** `12.8 Ω to 845 Ω`, with a word on each bound that rests on a typical value. */
+function describeWindow(window: ZenerWindow, typical: TypicalBounds, hasMaximumCurrent: boolean): string {
+  const lower = window.minimum > 0 ? formatQuantity(window.minimum, 'Ω') : '0 Ω';
+  const notes = [
+    typical.lower && hasMaximumCurrent ? `lower bound from a typical ${describeTypical(typical.lower)}` : undefined,
+    typical.upper ? `upper bound from a typical ${describeTypical(typical.upper)}` : undefined,
+  ].filter((each) => each !== undefined);
+  const noLimit = hasMaximumCurrent ? '' : ' (no IZM or PD known for a lower bound)';
+  return `${lower} to ${formatQuantity(window.maximum, 'Ω')}${noLimit}${notes.map((note) => `, ${note}`).join('')}`;
+}
+
+function describeTypical({ key, rated }: { key: DiodeRatingKey; rated: RatedValue }): string {
+  const { symbol, unit } = RATING_SYMBOLS[key];
+  return `${symbol} of ${formatQuantity(rated.value, unit)}`;
 }
 
 /** The resistors that may feed the zener: those in series, else those at its cathode's junction (through any ammeters). */
@@ -179,7 +225,7 @@ function noWindowReason(window: ZenerWindow, plans: readonly CornerPlan[], reque
   }
   return (
     `keeping ${formatQuantity(request.minimumCurrent, 'A')} in the zener${describe(window.maximumCorner)} (low supply, heaviest load) needs at most ${formatQuantity(window.maximum, 'Ω')}, ` +
-    `but keeping it under ${formatQuantity(request.maximumCurrent, 'A')}${describe(window.minimumCorner)} (high supply, lightest load) needs at least ${formatQuantity(window.minimum, 'Ω')}: ` +
+    `but keeping it under ${formatQuantity(request.maximumCurrent, 'A')}${describe(window.minimumCorner)} (high supply, no load) needs at least ${formatQuantity(window.minimum, 'Ω')}: ` +
     'the supply range is too wide for this zener and load.'
   );
 }
