@@ -215,6 +215,11 @@ describe.runIf(ngspice)('zener-underbiased', () => {
     const rmax = (7.5 - 5.1) / (1e-3 + 5.1 / 680);
     const fix = found.fixes.find((f) => f.preferred)!;
     expect(near(quantityAfter(fix.title, 'window [\\d.]+ [kM]?Ω to', 'Ω'), rmax)).toBe(true);
+    // Window bottom: Rmin = (Vs,max − Vz)/Iz,max = (9.6 − 5.1)/(0.5 W / 5.1 V) = 45.9 Ω (textbook; PD from the directive).
+    expect(near(quantityAfter(fix.title, 'window', 'Ω'), (9.6 - 5.1) / (0.5 / 5.1))).toBe(true);
+    expect(fix.title).not.toContain('typical');
+    // The largest E24 value that stays under Rmax at +5 % (IEC 60063: E24 is made for ±5 %): 240 Ω (240 × 1.05 = 252 Ω; 270 × 1.05 = 284 Ω is over).
+    expect(quantityAfter(fix.title, '^Change RFEED from [\\d.]+ Ω to', 'Ω')).toBe(240);
   });
 
   it('a 3.3 V bias zener fed from 5 V through 2.2 kΩ (b11)', () => {
@@ -231,6 +236,13 @@ describe.runIf(ngspice)('zener-underbiased', () => {
     const fix = found.fixes.find((f) => f.preferred)!;
     const rmax = (5 * LOW - 3.3) / (1e-3 + 3.3 / 4700);
     expect(near(quantityAfter(fix.title, 'window [\\d.]+ [kM]?Ω to', 'Ω'), rmax, 0.02)).toBe(true);
+    // Window bottom with no PD or IZM in the directive: the typical 500 mW of a small zener (typical
+    // value, from memory), Rmin = (5.25 − 3.3)/(0.5 W / 3.3 V) = 12.9 Ω (textbook), said to be typical (was x07: 2 Ω).
+    expect(near(quantityAfter(fix.title, 'window', 'Ω'), (5 * HIGH - 3.3) / (0.5 / 3.3), 0.02)).toBe(true);
+    expect(fix.title).toContain('lower bound from a typical PD of 500 mW');
+    // Near the top of the window, not its bottom (x07 offered 43 Ω, 34 mA through a 5 mA IZT part):
+    // the largest E24 value under Rmax at +5 % (IEC 60063), 750 Ω (750 × 1.05 = 788 Ω; 820 × 1.05 = 861 Ω is over).
+    expect(quantityAfter(fix.title, '^Change RBIAS from [\\d.]+ kΩ to', 'Ω')).toBe(750);
   });
 });
 
