@@ -42,9 +42,9 @@ export interface ResistanceWindow {
 
 /**
  * The preferred values inside a window with the part's tolerance at both ends (value × (1 +
- * tolerance) ≤ maximum and value × (1 − tolerance) ≥ minimum), largest first: a zener's or an
- * LED's feed resistor is best near the top of its window, where it dissipates least and draws
- * least from the supply, and the tolerance is the margin kept below the top.
+ * tolerance) ≤ maximum and value × (1 − tolerance) ≥ minimum), largest first: a zener's feed
+ * resistor is best near the top of its window, where it dissipates least and draws least from
+ * the supply, and the tolerance is the margin kept below the top.
  */
 export function preferredValuesFromTop(window: ResistanceWindow, tolerance: number, series: PreferredSeries, count: number): number[] {
   const high = window.maximum / (1 + tolerance);
