@@ -17,7 +17,7 @@ import { VoltageSwitchDevice } from './devices/voltage-switch.js';
 import { BjtDevice } from './devices/bjt.js';
 import { MosfetDevice } from './devices/mosfet.js';
 import { circuitLocation, diagnoseStructure } from './diagnose.js';
-import { CircuitSystem, StructureBuilder, type Device } from './mna.js';
+import { CircuitSystem, grown, SLOTS_PER_ELEMENT, StructureBuilder, type BindContext, type Device } from './mna.js';
 
 /** A node with no DC path to ground is tied to it through this conductance so the rest solves (ngspice's default gmin, 1e-12 S). */
 export const FLOATING_NODE_CONDUCTANCE = 1e-12;
@@ -78,26 +78,27 @@ function createDevice(element: Element): Device | undefined {
 
 /** Why a value of the element cannot be simulated (NaN from a failed expression, a MOSFET without a channel), if so. */
 function unreadableValue(element: Element): string | undefined {
-  const values: [string, number][] = [];
   switch (element.type) {
-    case 'R': values.push(['resistance', element.resistance]); break;
+    // An infinite resistance is a legitimate open circuit; NaN anywhere is not.
+    case 'R': return Number.isNaN(element.resistance) ? notFinite('resistance') : undefined;
     case 'V':
-    case 'I': values.push(['DC value', element.dc]); break;
+    case 'I': return Number.isFinite(element.dc) ? undefined : notFinite('DC value');
     case 'E':
     case 'F':
     case 'G':
-    case 'H': values.push(['gain', element.gain]); break;
+    case 'H': return Number.isFinite(element.gain) ? undefined : notFinite('gain');
     case 'D':
-    case 'Q': values.push(['area', element.area]); break;
+    case 'Q': return Number.isFinite(element.area) ? undefined : notFinite('area');
     case 'M':
-      values.push(['W', element.width], ['L', element.length]);
       if (element.width <= 0 || element.length <= 0) return 'its W or L is not positive';
-      break;
-    default: break;
+      if (!Number.isFinite(element.width)) return notFinite('W');
+      return Number.isFinite(element.length) ? undefined : notFinite('L');
+    default: return undefined;
   }
-  // An infinite resistance is a legitimate open circuit; NaN anywhere is not.
-  const bad = values.find(([name, value]) => Number.isNaN(value) || (name !== 'resistance' && !Number.isFinite(value)));
-  return bad ? `its ${bad[0]} is not a finite number` : undefined;
+}
+
+function notFinite(value: string): string {
+  return `its ${value} is not a finite number`;
 }
 
 /** How many nodes each element type needs (the rest of the solver indexes them freely). */
@@ -132,26 +133,35 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
     for (const node of element.nodes) if (node !== GROUND) unmodeledNodes.add(node);
   };
 
-  // Work on copies with ground folded, so that device code sees '0' only.
-  const elements: Element[] = circuit.elements.map((e) => (e.nodes.some((n) => canonicalNode(n) !== n) ? ({ ...e, nodes: e.nodes.map(canonicalNode) } as Element) : e));
-
   // One pass reads each element's type and nodes (elements come in many shapes, so each read
-  // is slow) and numbers every netlist node, in netlist order, before devices add their own unknowns.
-  const builder = new StructureBuilder(circuit.nodes.map(canonicalNode).filter((n) => n !== GROUND));
-  const count = elements.length;
+  // is slow), folds ground's other spelling into '0' (on a copy, so that device code sees '0'
+  // only) and numbers every netlist node through the one map, in netlist order, before devices
+  // add their own unknowns.
+  const source = circuit.elements;
+  const count = source.length;
+  const builder = new StructureBuilder(circuit.nodes.map(canonicalNode).filter((n) => n !== GROUND), SLOTS_PER_ELEMENT * count);
+  const elements: Element[] = new Array(count);
   const types: Element['type'][] = new Array(count);
   const nodeStart = new Int32Array(count + 1);
-  const nodeNumbers: number[] = [];
+  let nodeNumbers: Int32Array = new Int32Array(2 * count + 4);
+  let nodeTotal = 0;
   const branchOwners = new Set<string>();
   for (let i = 0; i < count; i++) {
-    const element = elements[i];
+    let element = source[i];
+    let nodes = element.nodes;
+    if (nodes.some((n) => canonicalNode(n) !== n)) {
+      nodes = nodes.map(canonicalNode);
+      element = { ...element, nodes } as Element;
+    }
+    elements[i] = element;
     const type = (types[i] = element.type);
-    nodeStart[i] = nodeNumbers.length;
-    for (const node of element.nodes) nodeNumbers.push(builder.node(node));
+    nodeStart[i] = nodeTotal;
+    if (nodeTotal + nodes.length > nodeNumbers.length) nodeNumbers = grown(nodeNumbers, nodeTotal + nodes.length);
+    for (let k = 0; k < nodes.length; k++) nodeNumbers[nodeTotal++] = builder.node(nodes[k]);
     // Voltage-defined elements, by lower-cased name, for F, H and W to find their control.
     if (type === 'V' || type === 'L' || type === 'E' || type === 'H') branchOwners.add(element.name.toLowerCase());
   }
-  nodeStart[count] = nodeNumbers.length;
+  nodeStart[count] = nodeTotal;
 
   const active = new Uint8Array(count);
   let activeCount = 0;
@@ -182,8 +192,8 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
     activeCount++;
   }
 
-  const nodeIndex = new Map<string, number>(builder.nodeEntries());
-  const structure = diagnoseStructure(circuit, { elements, types, active, nodeStart, nodeNumbers: Int32Array.from(nodeNumbers), nodeIndex, nodeCount: builder.size });
+  const nodeIndex = builder.nodeIndex;
+  const structure = diagnoseStructure(circuit, { elements, types, active, nodeStart, nodeNumbers: nodeNumbers.subarray(0, nodeTotal), nodeIndex, nodeCount: builder.size });
   diagnostics.push(...structure.diagnostics);
 
   const devices: Device[] = [];
@@ -198,24 +208,26 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
   for (const device of devices) {
     if (device instanceof VoltageSourceDevice || device instanceof VcvsDevice || device instanceof CcvsDevice) branchByName.set(device.element.name.toLowerCase(), device.branch);
   }
-  for (const device of devices) {
-    device.bind?.({
-      branchOf: (name) => branchByName.get(name.toLowerCase()),
-      slot: (row, column) => builder.slot(row, column),
-    });
-  }
+  // One context for every device that looks up another's branch (F, H, W).
+  const binding: BindContext = {
+    branchOf: (name) => branchByName.get(name.toLowerCase()),
+    slot: (row, column) => builder.slot(row, column),
+  };
+  for (const device of devices) device.bind?.(binding);
 
-  const voltageDiagonals: number[] = [];
-  for (let i = 1; i < builder.size; i++) if (builder.unknowns[i].kind !== 'branch') voltageDiagonals.push(builder.slot(i, i));
-  const floatingDiagonals = [...structure.floatingNodes].map((name) => builder.slot(nodeIndex.get(name)!, nodeIndex.get(name)!));
+  let voltageUnknowns = 0;
+  for (let i = 1; i < builder.size; i++) if (!builder.isBranch(i)) voltageUnknowns++;
+  const voltageDiagonals = new Int32Array(voltageUnknowns);
+  for (let i = 1, k = 0; i < builder.size; i++) if (!builder.isBranch(i)) voltageDiagonals[k++] = builder.slot(i, i);
+  const floatingDiagonals = Int32Array.from(structure.floatingNodes, (name) => builder.slot(nodeIndex.get(name)!, nodeIndex.get(name)!));
 
   const gmin = circuit.options?.gmin ?? DEFAULT_GMIN;
-  const system = new CircuitSystem(builder, devices, Int32Array.from(voltageDiagonals), Int32Array.from(floatingDiagonals), gmin > 0 ? Math.min(gmin, FLOATING_NODE_CONDUCTANCE) : FLOATING_NODE_CONDUCTANCE);
+  const system = new CircuitSystem(builder, devices, voltageDiagonals, floatingDiagonals, gmin > 0 ? Math.min(gmin, FLOATING_NODE_CONDUCTANCE) : FLOATING_NODE_CONDUCTANCE);
 
   // The algebra's matrix, excluding ground: our slot k is its slot k − 1 when registered in order.
   const matrix = new SparseMatrix(Math.max(0, builder.size - 1));
   for (let k = 1; k < builder.slotCount; k++) {
-    const slot = matrix.slot(builder.slotRows[k] - 1, builder.slotColumns[k] - 1);
+    const slot = matrix.slot(builder.slotRow(k) - 1, builder.slotColumn(k) - 1);
     if (slot !== k - 1) throw new Error('matrix slots out of order');
   }
   matrix.finalize();

@@ -114,30 +114,57 @@ export interface Device {
   solveDiagnostics?(): NetlistDiagnostic[];
 }
 
-/** Entries per matrix row searched linearly before a row gets a map (ours: a typical node has a handful). */
-const SHORT_ROW_ENTRIES = 16;
+/** Unknown kinds by code, as StructureBuilder stores them (one small number per unknown, no object). */
+const UNKNOWN_KINDS: readonly UnknownKind[] = ['node', 'internal', 'branch'];
+const NODE = 0;
+const INTERNAL = 1;
+const BRANCH = 2;
 
-/** Numbers the unknowns and collects the matrix structure while devices register. */
+/** The slot table is kept at most half full, so that a lookup probes about two places (open addressing, common practice). */
+const SLOT_TABLE_MAXIMUM_LOAD = 0.5;
+/** Matrix entries a typical two-terminal element registers (four for a conductance), to size the tables up front (ours). */
+export const SLOTS_PER_ELEMENT = 4;
+
+/** Numbers the unknowns and collects the matrix structure while devices register; no object per unknown or entry. */
 export class StructureBuilder implements SetupContext {
-  readonly unknowns: Unknown[] = [{ kind: 'node', name: '0', label: 'ground' }];
-  private readonly nodeIndex = new Map<string, number>();
+  /** Netlist node name → unknown number, ground ('0') being 0; built once, read by everything after. */
+  readonly nodeIndex = new Map<string, number>();
+  private kinds: Uint8Array;
+  private readonly names: string[] = [];
+  private readonly labels: string[] = [];
+  private unknownCount = 0;
   /** Our slot number → (row, column) as unknown numbers; slot 0 is the discard. */
-  readonly slotRows: number[] = [0];
-  readonly slotColumns: number[] = [0];
-  /** Per row: (column, slot) pairs; rows beyond SHORT_ROW_ENTRIES also get a map. */
-  private readonly rowEntries: number[][] = [];
-  private readonly longRows = new Map<number, Map<number, number>>();
+  private rows: Int32Array;
+  private columns: Int32Array;
+  private entryCount = 1;
+  /** Open-addressing hash table of slot numbers by (row, column); 0 marks an empty place. */
+  private table: Int32Array;
 
-  constructor(nodeNames: readonly string[]) {
+  /** `expectedSlots` only sizes the tables; they grow when it is exceeded. */
+  constructor(nodeNames: readonly string[], expectedSlots = 0) {
+    this.kinds = new Uint8Array(Math.max(16, nodeNames.length + 1));
+    this.add(NODE, '0', 'ground');
     this.nodeIndex.set('0', 0);
     for (const name of nodeNames) this.node(name);
+    const capacity = Math.max(16, expectedSlots + 1);
+    this.rows = new Int32Array(capacity);
+    this.columns = new Int32Array(capacity);
+    this.table = new Int32Array(tableSizeFor(capacity));
+  }
+
+  private add(kind: number, name: string, label: string): number {
+    const index = this.unknownCount++;
+    if (index >= this.kinds.length) this.kinds = grown(this.kinds, index + 1);
+    this.kinds[index] = kind;
+    this.names.push(name);
+    this.labels.push(label);
+    return index;
   }
 
   node(name: string): number {
     const existing = this.nodeIndex.get(name);
     if (existing !== undefined) return existing;
-    const index = this.unknowns.length;
-    this.unknowns.push({ kind: 'node', name, label: 'node' });
+    const index = this.add(NODE, name, 'node');
     this.nodeIndex.set(name, index);
     return index;
   }
@@ -147,58 +174,92 @@ export class StructureBuilder implements SetupContext {
   }
 
   internalNode(owner: string, label: string): number {
-    const index = this.unknowns.length;
-    this.unknowns.push({ kind: 'internal', name: owner, label });
-    return index;
+    return this.add(INTERNAL, owner, label);
   }
 
   branch(owner: string): number {
-    const index = this.unknowns.length;
-    this.unknowns.push({ kind: 'branch', name: owner, label: 'current' });
-    return index;
+    return this.add(BRANCH, owner, 'current');
   }
 
   slot(row: number, column: number): number {
     if (row === 0 || column === 0) return 0;
-    // Rows hold few entries: a short list of (column, slot) pairs, and a map once a row grows long.
-    // Grow the row table densely (a sparse JS array would fall back to a slow dictionary).
-    while (this.rowEntries.length <= row) this.rowEntries.push([]);
-    const entries = this.rowEntries[row];
-    if (entries.length <= 2 * SHORT_ROW_ENTRIES) {
-      for (let i = 0; i < entries.length; i += 2) if (entries[i] === column) return entries[i + 1];
-    } else {
-      const existing = this.longRows.get(row)!.get(column);
-      if (existing !== undefined) return existing;
+    const table = this.table;
+    const mask = table.length - 1;
+    let place = slotHash(row, column) & mask;
+    for (let existing = table[place]; existing !== 0; existing = table[place]) {
+      if (this.rows[existing] === row && this.columns[existing] === column) return existing;
+      place = (place + 1) & mask;
     }
-    const index = this.slotRows.length;
-    this.slotRows.push(row);
-    this.slotColumns.push(column);
-    if (entries.length <= 2 * SHORT_ROW_ENTRIES) {
-      entries.push(column, index);
-      if (entries.length > 2 * SHORT_ROW_ENTRIES) {
-        const map = new Map<number, number>();
-        for (let i = 0; i < entries.length; i += 2) map.set(entries[i], entries[i + 1]);
-        this.longRows.set(row, map);
-      }
-    } else {
-      this.longRows.get(row)!.set(column, index);
-      entries.push(column, index);
+    const index = this.entryCount++;
+    if (index >= this.rows.length) {
+      this.rows = grown(this.rows, index + 1);
+      this.columns = grown(this.columns, index + 1);
     }
+    this.rows[index] = row;
+    this.columns[index] = column;
+    table[place] = index;
+    if (this.entryCount > table.length * SLOT_TABLE_MAXIMUM_LOAD) this.rehash();
     return index;
   }
 
+  private rehash(): void {
+    const table = new Int32Array(this.table.length * 2);
+    const mask = table.length - 1;
+    for (let index = 1; index < this.entryCount; index++) {
+      let place = slotHash(this.rows[index], this.columns[index]) & mask;
+      while (table[place] !== 0) place = (place + 1) & mask;
+      table[place] = index;
+    }
+    this.table = table;
+  }
+
   get size(): number {
-    return this.unknowns.length;
+    return this.unknownCount;
   }
 
   get slotCount(): number {
-    return this.slotRows.length;
+    return this.entryCount;
   }
 
-  /** Names of the netlist nodes with their unknown numbers. */
-  nodeEntries(): [string, number][] {
-    return [...this.nodeIndex.entries()];
+  /** Row (unknown number) of our slot k. */
+  slotRow(k: number): number {
+    return this.rows[k];
   }
+
+  /** Column (unknown number) of our slot k. */
+  slotColumn(k: number): number {
+    return this.columns[k];
+  }
+
+  isBranch(i: number): boolean {
+    return this.kinds[i] === BRANCH;
+  }
+
+  /** What unknown i is, built on demand (messages only). */
+  unknown(i: number): Unknown | undefined {
+    if (!(i >= 0 && i < this.unknownCount)) return undefined;
+    return { kind: UNKNOWN_KINDS[this.kinds[i]], name: this.names[i], label: this.labels[i] };
+  }
+}
+
+/** A well-mixed 31-bit hash of a matrix position (multiplicative hashing with odd constants, common practice). */
+function slotHash(row: number, column: number): number {
+  const mixed = Math.imul(row, 0x9e3779b1) ^ Math.imul(column + 0x7f4a7c15, 0x85ebca77);
+  return (mixed ^ (mixed >>> 15)) >>> 0;
+}
+
+/** The power of two that holds `entries` within SLOT_TABLE_MAXIMUM_LOAD. */
+function tableSizeFor(entries: number): number {
+  let size = 16;
+  while (size * SLOT_TABLE_MAXIMUM_LOAD < entries) size *= 2;
+  return size;
+}
+
+/** A copy of `array` with room for at least `needed` items (doubling, so that growth stays linear overall). */
+export function grown<T extends Uint8Array | Int32Array>(array: T, needed: number): T {
+  const bigger = new (array.constructor as new (length: number) => T)(Math.max(needed, array.length * 2));
+  bigger.set(array);
+  return bigger;
 }
 
 /** The four slots [aa, ab, ba, bb] of a conductance between unknowns a and b (small arrays: cheaper than typed arrays per device). */
@@ -219,7 +280,6 @@ export function stampConductance(matrix: Float64Array, slots: readonly number[],
  */
 export class CircuitSystem {
   readonly size: number;
-  readonly unknowns: Unknown[];
   readonly linearDevices: Device[];
   readonly nonlinearDevices: Device[];
   /** Matrix values by our slot (slot 0 is the discard). */
@@ -234,16 +294,16 @@ export class CircuitSystem {
   /** 1 where the unknown is a branch current. */
   readonly isCurrent: Uint8Array;
   private linearFactor = Number.NaN;
+  private workState: { solution: Float64Array; next: Float64Array } | undefined;
 
   constructor(
-    builder: StructureBuilder,
+    private readonly builder: StructureBuilder,
     readonly devices: Device[],
     voltageDiagonals: Int32Array,
     floatingDiagonals: Int32Array,
     private readonly floatingConductance: number,
   ) {
     this.size = builder.size;
-    this.unknowns = builder.unknowns;
     this.linearDevices = devices.filter((d) => d.linear);
     this.nonlinearDevices = devices.filter((d) => !d.linear);
     this.stamps = new Float64Array(builder.slotCount);
@@ -253,7 +313,18 @@ export class CircuitSystem {
     this.voltageDiagonals = voltageDiagonals;
     this.floatingDiagonals = floatingDiagonals;
     this.isCurrent = new Uint8Array(this.size);
-    this.unknowns.forEach((u, i) => (this.isCurrent[i] = u.kind === 'branch' ? 1 : 0));
+    for (let i = 0; i < this.size; i++) this.isCurrent[i] = builder.isBranch(i) ? 1 : 0;
+  }
+
+  /** What unknown i is (node, internal node or branch current, and whose). */
+  unknown(i: number): Unknown | undefined {
+    return this.builder.unknown(i);
+  }
+
+  /** Two solution-sized vectors for Newton, allocated once per compiled circuit and reused by every solve. */
+  workVectors(): { solution: Float64Array; next: Float64Array } {
+    this.workState ??= { solution: new Float64Array(this.size), next: new Float64Array(this.size) };
+    return this.workState;
   }
 
   /** Call after devices were prepared for a new corner: the linear part is then reloaded. */
@@ -289,7 +360,7 @@ export class CircuitSystem {
 
   /** A readable name for unknown i: `node out`, `the internal node of D1 (junction side of RS)`, `the current of V1`. */
   describe(i: number): string {
-    const unknown = this.unknowns[i];
+    const unknown = this.unknown(i);
     if (!unknown) return `unknown ${i}`;
     if (unknown.kind === 'node') return `node ${unknown.name}`;
     if (unknown.kind === 'internal') return `the internal node of ${unknown.name} (${unknown.label})`;

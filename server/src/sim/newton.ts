@@ -37,9 +37,10 @@ export class NewtonState {
   solution: Float64Array;
   private next: Float64Array;
 
-  constructor(size: number) {
-    this.solution = new Float64Array(size);
-    this.next = new Float64Array(size);
+  /** Starts from zero in `vectors` (two arrays of the system's size, reused from solve to solve). */
+  constructor(vectors: { solution: Float64Array; next: Float64Array }) {
+    this.solution = vectors.solution.fill(0);
+    this.next = vectors.next;
   }
 
   swap(): void {

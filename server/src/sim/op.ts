@@ -138,7 +138,7 @@ export function solveOperatingPoint(compiled: CompiledCircuit, corner: Corner = 
     }
     system.invalidateLinear();
 
-    const state = new NewtonState(system.size);
+    const state = new NewtonState(system.workVectors());
     const warm = options.initialGuess !== undefined;
     if (options.initialGuess) {
       const guess = caseInsensitiveLookup(options.initialGuess);
@@ -198,8 +198,9 @@ export function solveOperatingPoint(compiled: CompiledCircuit, corner: Corner = 
 
 function locationOfUnknown(compiled: CompiledCircuit, unknown: number | undefined) {
   const { circuit, system } = compiled;
-  if (unknown !== undefined && system.unknowns[unknown]) {
-    const { kind, name } = system.unknowns[unknown];
+  const described = unknown !== undefined ? system.unknown(unknown) : undefined;
+  if (described) {
+    const { kind, name } = described;
     const element =
       kind === 'node' ? circuit.elements.find((e) => e.nodes.includes(name)) : circuit.elements.find((e) => e.name === name);
     return circuitLocation(circuit, element);

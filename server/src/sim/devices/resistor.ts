@@ -1,6 +1,6 @@
 // The resistor: a conductance between its two nodes.
 import type { Resistor } from '../../netlist/circuit.js';
-import { conductanceSlots, stampConductance, type CornerConditions, type Device, type DeviceResultSink, type LoadContext, type SetupContext } from '../mna.js';
+import { type CornerConditions, type Device, type DeviceResultSink, type LoadContext, type SetupContext } from '../mna.js';
 
 /** A resistance of exactly 0 Ω is solved as this many ohms, as ngspice 39 does (measured: 1 V across 0 Ω + 1 Ω draws 0.999001 A). */
 export const ZERO_RESISTANCE_SUBSTITUTE = 1e-3;
@@ -9,7 +9,11 @@ export class ResistorDevice implements Device {
   readonly linear = true;
   private a = 0;
   private b = 0;
-  private slots: number[] = [];
+  // Matrix slots as fields, not an array: one object fewer per resistor.
+  private slotAA = 0;
+  private slotAB = 0;
+  private slotBA = 0;
+  private slotBB = 0;
   private conductance = 0;
 
   // Read once from the element: circuits mix element shapes, so property reads on them are slow in hot loops.
@@ -24,7 +28,10 @@ export class ResistorDevice implements Device {
   setup(context: SetupContext): void {
     this.a = context.node(this.element.nodes[0]);
     this.b = context.node(this.element.nodes[1]);
-    this.slots = conductanceSlots(context, this.a, this.b);
+    this.slotAA = context.slot(this.a, this.a);
+    this.slotAB = context.slot(this.a, this.b);
+    this.slotBA = context.slot(this.b, this.a);
+    this.slotBB = context.slot(this.b, this.b);
   }
 
   prepare(conditions: CornerConditions): void {
@@ -35,7 +42,12 @@ export class ResistorDevice implements Device {
   }
 
   load(context: LoadContext): void {
-    stampConductance(context.matrix, this.slots, this.conductance);
+    const m = context.matrix;
+    const g = this.conductance;
+    m[this.slotAA] += g;
+    m[this.slotAB] -= g;
+    m[this.slotBA] -= g;
+    m[this.slotBB] += g;
   }
 
   report(solution: Float64Array, sink: DeviceResultSink): void {
