@@ -147,6 +147,38 @@ describe.runIf(ngspice)('reversed-diode', () => {
   });
 });
 
+describe.runIf(ngspice)('reversed-diode: clamps and freewheel diodes that conduct into the wrong place, or will', () => {
+  it('an upper pin clamp fitted anode to the 3.3 V rail holds the pin high against its driver (b29)', () => {
+    const file = 'b29-pin-clamp-reversed.cir';
+    const found = finding(file, 'reversed-diode');
+    expectAt(found, 'warning', 5, 'DUP');
+    expect(found.message).toMatch(/VKEY drives it to 0 V through RSER/);
+    // ngspice 39 at the high corner (3.3 V + 5 %): the clamp carries milliamperes into the pin.
+    const netlist = withLines(readCircuit(`bad/${file}`), { V3V3: `V3V3 v3v3 0 DC ${3.3 * HIGH}` });
+    const current = referenceDiodeCurrent(netlist, 'DUP');
+    expect(near(quantityAfter(found.message, 'carries', 'A'), current)).toBe(true);
+    expect(near(quantityAfter(found.message, 'holding pin at', 'V'), referenceSolve(netlist, ['v(pin)']).get('v(pin)')!)).toBe(true);
+    // At nominal, 2.67 mA and 2.64 V (ngspice 39): the input always reads high.
+    expect(referenceSolve(readCircuit(`bad/${file}`), ['v(pin)']).get('v(pin)')!).toBeGreaterThan(2.5);
+  });
+
+  it('a freewheel diode fitted anode to the 24 V supply across a coil whose transistor is off (b30)', () => {
+    const file = 'b30-freewheel-reversed-switch-off.cir';
+    const found = finding(file, 'reversed-diode');
+    expectAt(found, 'error', 8, 'DFLY');
+    expect(found.message).toMatch(/across the coil LCOIL/);
+    expect(found.message).toMatch(/once QVALVE switches on/);
+    // ngspice 39: idle as drawn; with QVALVE closed (a 0 V source collector to emitter) at 25.2 V, a supply short.
+    expect(Math.abs(referenceDiodeCurrent(readCircuit(`bad/${file}`), 'DFLY'))).toBeLessThan(1e-6);
+    const onState = referenceDiodeCurrent(readCircuit(`bad/${file}`), 'DFLY', {
+      V24: `V24 v24 0 DC ${24 * HIGH}`,
+      QVALVE: 'VCLOSED coil_low 0 DC 0',
+    });
+    expect(onState).toBeGreaterThan(1); // reversed-diode.md: 1 A or more shorts a supply
+    expect(near(quantityAfter(found.message, 'forward with', 'A'), onState)).toBe(true);
+  });
+});
+
 describe('reverse-overvoltage', () => {
   it('a half-wave rectifier with a filter capacitor sees about 2·Vm across a 30 V diode (b08)', () => {
     const found = finding('b08-half-wave-low-vrrm.cir', 'reverse-overvoltage');

@@ -44,6 +44,8 @@ const FIXABLE: Record<string, { rule: string; element: string }> = {
   'b11-zener-starved-rail.cir': { rule: 'zener-underbiased', element: 'DBIAS' },
   'b12-zener-forward.cir': { rule: 'zener-forward', element: 'DREF' },
   'b28-ac-led-series-blocker.cir': { rule: 'reverse-overvoltage', element: 'DLED' },
+  'b29-pin-clamp-reversed.cir': { rule: 'reversed-diode', element: 'DUP' },
+  'b30-freewheel-reversed-switch-off.cir': { rule: 'reversed-diode', element: 'DFLY' },
 };
 
 let folder: string;
@@ -170,6 +172,16 @@ describe.runIf(ngspice)('the fixed circuits by the reference engine', () => {
       VCTRL: `VCTRL ctrl 0 DC ${3.3 * HIGH}`,
     });
     expect(Math.abs(freewheel)).toBeLessThan(BLOCKING_CURRENT);
+  });
+
+  it('b29 and b30: the clamp turned around idles with the key low, the freewheel diode with the transistor on', () => {
+    // ngspice 39, at the high corner.
+    expect(Math.abs(referenceDiodeCurrent(fixedText('b29-pin-clamp-reversed.cir'), 'DUP', { V3V3: `V3V3 v3v3 0 DC ${3.3 * HIGH}` }))).toBeLessThan(BLOCKING_CURRENT);
+    const onState = referenceDiodeCurrent(fixedText('b30-freewheel-reversed-switch-off.cir'), 'DFLY', {
+      V24: `V24 v24 0 DC ${24 * HIGH}`,
+      QVALVE: 'VCLOSED coil_low 0 DC 0',
+    });
+    expect(Math.abs(onState)).toBeLessThan(BLOCKING_CURRENT);
   });
 
   it('b10: the new feed resistor is the largest E24 value inside the textbook window, and the zener holds IZK to PD/VZ at every corner', () => {

@@ -149,3 +149,22 @@ export function feedResistors(topology: Topology, diode: Element, nodes: Readonl
   }
   return [...found];
 }
+
+/**
+ * The far end of a resistive path: from `node` across `resistor`, then on through whatever is
+ * in series with it, as long as that is resistors or 0 V sources (ammeters). Undefined when
+ * anything else is on the way.
+ */
+export function resistivePathEnd(topology: Topology, resistor: Resistor, node: string): { end: string; resistors: Resistor[] } | undefined {
+  let end = otherNode(resistor, node);
+  if (end === undefined) return undefined;
+  const resistors = [resistor];
+  for (const next of seriesChain(topology, resistor, end)) {
+    if (next.type === 'R') resistors.push(next);
+    else if (!(next.type === 'V' && next.dc === 0 && next.waveform === undefined)) return undefined;
+    end = otherNode(next, end);
+    if (end === undefined) return undefined;
+  }
+  return { end, resistors };
+}
+

@@ -1,14 +1,18 @@
 // reversed-diode, decided by a counterfactual solve (issue 4): an LED or series diode that
 // never conducts, but would carry a plausible current turned around, is reversed. One
 // that would short a supply turned around is an intentional clamp and is left alone. And
-// a clamp or freewheel diode that a DC supply drives forward, shorting it, is reversed.
-import type { Diode, Element } from '../../netlist/circuit.js';
+// a clamp or freewheel diode that a DC supply drives forward, shorting it, is reversed; so
+// is a pin clamp whose anode is on the rail (it holds the pin near the rail against its
+// driver), and a freewheel diode whose anode is on the coil's supply side even while the
+// coil is switched off (it shorts the supply once the switch closes).
+import { GROUND, type Diode, type Element, type Resistor, type VoltageSource } from '../../netlist/circuit.js';
 import type { CornerPlan } from '../corners.js';
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext, type CheckedDiode } from '../context.js';
 import { makeFinding } from '../finding.js';
-import { bridgesInductor, currentNodes } from '../topology.js';
+import { unusedName } from '../regions.js';
+import { bridgesInductor, currentNodes, resistivePathEnd } from '../topology.js';
 import {
   CONDUCTION_THRESHOLD,
   forwardCurrent,
@@ -18,7 +22,7 @@ import {
   worstCorner,
 } from '../thresholds.js';
 import { kindNameOpening } from '../vocabulary.js';
-import { cornerSources } from './related.js';
+import { cornerSources, nodesAt } from './related.js';
 import type { Rule } from './rule.js';
 
 const ID = 'reversed-diode';
@@ -31,7 +35,7 @@ export const reversedDiode: Rule = {
     const suspects: CheckedDiode[] = [];
     for (const diode of context.diodes) {
       if (diode.kind === 'zener' || diode.unchecked) continue; // a zener works reversed; zener-forward covers the other way
-      const finding = drivenForwardIntoShort(context, diode);
+      const finding = drivenForwardIntoShort(context, diode) ?? clampFittedBackwards(context, diode) ?? idleFreewheelFittedBackwards(context, diode);
       if (finding) findings.push(finding);
       else if (isSuspect(context, diode, partners)) suspects.push(diode);
     }
@@ -75,6 +79,149 @@ function drivenForwardIntoShort(context: CheckContext, diode: CheckedDiode): Fin
     diode.element.location,
     { element: name, related },
   );
+}
+
+/**
+ * An upper clamp fitted backwards: its anode on a supply rail, its cathode on a node that
+ * another source drives through a resistor. It conducts at DC and holds that node near the
+ * rail whatever the driver says; turned around, as a clamp belongs, it would idle at every
+ * corner. (The mirror case, a lower clamp with its anode on the node and its cathode on
+ * ground, is left alone: at DC it is the same circuit as a diode-logic input that its driver
+ * pulls low.)
+ */
+function clampFittedBackwards(context: CheckContext, diode: CheckedDiode): Finding | undefined {
+  if (diode.kind === 'led') return undefined;
+  const element = diode.element;
+  const [anode, cathode] = element.nodes as [string, string];
+  const { rails, connections } = context.topology;
+  if (anode === GROUND || !rails.has(anode) || rails.has(cathode) || bridgesInductor(context.topology, element)) return undefined;
+  const worst = worstCorner(diode, forwardCurrent);
+  if (!worst || worst.value < PLAUSIBLE_CURRENT) return undefined;
+  const nodes = nodesAt(context, worst.at);
+  const railVoltage = nodes[anode];
+  const pinVoltage = nodes[cathode];
+  if (railVoltage === undefined || pinVoltage === undefined || !(railVoltage > 0)) return undefined;
+  // An OR output: another diode feeds the same node from somewhere other than ground.
+  const orPartner = (connections.get(cathode) ?? []).some((other) => other !== element && other.type === 'D' && other.nodes[1] === cathode && other.nodes[0] !== GROUND);
+  if (orPartner) return undefined;
+  const driver = drivingSource(context, cathode, anode, nodes, railVoltage);
+  if (!driver) return undefined;
+  // The counterfactual: turned around, it idles at every corner that solves.
+  const flipped: Diode = { ...element, nodes: [cathode, anode] };
+  const results = context.solveWithReplacements(new Map([[element, flipped]]), context.plans.map((plan, index) => ({ plan: index, corner: plan.corner })));
+  const flippedCurrents = results.flatMap((result) => (result?.ok ? [result.point.diodes[element.name]?.current ?? 0] : []));
+  if (flippedCurrents.length === 0 || flippedCurrents.some((current) => current >= CONDUCTION_THRESHOLD)) return undefined;
+  const name = element.name;
+  const through = driver.resistors.map((resistor) => resistor.name).join(' and ');
+  return makeFinding(
+    ID,
+    'warning',
+    `${kindNameOpening(diode.kind)} ${name} looks like a clamp fitted backwards: its anode is on the supply rail ${anode} (${formatQuantity(railVoltage, 'V')}) and it carries ` +
+      `${formatQuantity(worst.value, 'A')} into ${cathode} ${atCorner(worst.at.plan)}, holding ${cathode} at ${formatQuantity(pinVoltage, 'V')} although ${driver.source.name} drives it to ` +
+      `${formatQuantity(driver.voltage, 'V')} through ${through}. Turned around (cathode to ${anode}) it would idle, and clamp only above the rail.`,
+    element.location,
+    {
+      element: name,
+      related: [
+        ...cornerSources(context, worst.at.plan),
+        { location: driver.source.location, message: `${driver.source.name}, which drives ${cathode}` },
+        ...driver.resistors.map((resistor) => ({ location: resistor.location, message: `${resistor.name} (${formatQuantity(resistor.resistance, 'Ω')}) from the driver` })),
+      ],
+    },
+  );
+}
+
+/**
+ * An independent source, other than ground and the diode's own rail, that drives `node`
+ * through resistors from a level inside the rails (what a clamp guards), taking the diode's
+ * current at this operating point.
+ */
+function drivingSource(
+  context: CheckContext,
+  node: string,
+  diodeRail: string,
+  nodes: Readonly<Record<string, number>>,
+  railVoltage: number,
+): { source: VoltageSource; voltage: number; resistors: Resistor[] } | undefined {
+  const { rails, connections } = context.topology;
+  for (const resistor of connections.get(node) ?? []) {
+    if (resistor.type !== 'R') continue;
+    const path = resistivePathEnd(context.topology, resistor, node);
+    if (!path || path.end === GROUND || path.end === diodeRail || !rails.has(path.end)) continue;
+    const voltage = nodes[path.end];
+    const here = nodes[node];
+    if (voltage === undefined || here === undefined || voltage < 0 || voltage > railVoltage || here <= voltage) continue;
+    const source = (connections.get(path.end) ?? []).find((each): each is VoltageSource => each.type === 'V' && each.nodes.includes(GROUND));
+    if (source) return { source, voltage, resistors: path.resistors };
+  }
+  return undefined;
+}
+
+/**
+ * A freewheel diode fitted backwards on a coil that is switched off at DC: idle now, but with
+ * its anode on the coil's supply side the supply drives it forward once the switch closes.
+ * Decided by the on-state counterfactual: the transistor or switch on the coil's other end
+ * taken as closed (a 0 V source across its current terminals).
+ */
+function idleFreewheelFittedBackwards(context: CheckContext, diode: CheckedDiode): Finding | undefined {
+  if (diode.kind === 'led') return undefined;
+  const element = diode.element;
+  if (!bridgesInductor(context.topology, element)) return undefined;
+  const worst = worstCorner(diode, forwardCurrent);
+  if (!worst || worst.value >= PLAUSIBLE_CURRENT) return undefined; // conducting now: drivenForwardIntoShort's
+  const [anode, cathode] = element.nodes as [string, string];
+  const { rails, connections } = context.topology;
+  if (rails.has(anode) === rails.has(cathode)) return undefined; // the coil's supply side is a rail, its other end is switched
+  const switched = rails.has(anode) ? cathode : anode;
+  const closable = (connections.get(switched) ?? []).map((each) => ({ each, terminals: switchTerminals(each) })).find((entry) => entry.terminals?.includes(switched));
+  if (!closable?.terminals) return undefined;
+  const switchElement = closable.each;
+  const closed: VoltageSource = {
+    type: 'V',
+    name: unusedName(`Vclosed_${switchElement.name.replace(/\./g, '_')}`, context.takenNames),
+    nodes: [...closable.terminals],
+    dc: 0,
+    waveform: undefined,
+    location: switchElement.location,
+    instances: switchElement.instances,
+  };
+  const results = context.solveWithReplacements(new Map([[switchElement, closed]]), context.plans.map((plan, index) => ({ plan: index, corner: plan.corner })));
+  let best: { current: number; plan: CornerPlan } | undefined;
+  results.forEach((result, index) => {
+    const current = result?.ok ? result.point.diodes[element.name]?.current : undefined;
+    if (current !== undefined && (!best || current > best.current)) best = { current, plan: context.plans[index]! };
+  });
+  if (!best || best.current < PLAUSIBLE_CURRENT) return undefined;
+  const coil = inductorAcross(context, diode);
+  const name = element.name;
+  const short = best.current >= SUPPLY_SHORT_CURRENT;
+  const related = cornerSources(context, best.plan);
+  if (coil) related.push({ location: coil.location, message: `${coil.name}, the coil it is across` });
+  related.push({ location: switchElement.location, message: `${switchElement.name}, taken as switched on` });
+  return makeFinding(
+    ID,
+    short ? 'error' : 'warning',
+    `${name} sits across ${coil ? `the coil ${coil.name}` : 'a coil'} the wrong way round: with ${switchElement.name} off it idles, but once ${switchElement.name} switches on ` +
+      `the supply drives it forward with ${formatQuantity(best.current, 'A')} ${atCorner(best.plan)}${short ? ', shorting the supply' : ''}. ` +
+      'A freewheel diode must be reverse-biased while the coil is energised (cathode towards the supply) and conduct only when the coil is switched off; turn it around.',
+    element.location,
+    { element: name, related },
+  );
+}
+
+/** The two terminals a transistor or switch connects when it is on (collector and emitter, drain and source); undefined for anything else. */
+function switchTerminals(element: Element): [string, string] | undefined {
+  switch (element.type) {
+    case 'Q':
+      return [element.nodes[0]!, element.nodes[2]!];
+    case 'M':
+      return [element.nodes[0]!, element.nodes[2]!];
+    case 'S':
+    case 'W':
+      return [element.nodes[0]!, element.nodes[1]!];
+    default:
+      return undefined;
+  }
 }
 
 /** An LED or series diode that conducts at no corner, and is not in a position where that is by design. */
