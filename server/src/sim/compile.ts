@@ -201,6 +201,7 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
     if (!active[i]) continue;
     const device = createDevice(elements[i]);
     if (!device) continue;
+    builder.beginElement(nodeNumbers, nodeStart[i], nodeStart[i + 1] - nodeStart[i]);
     device.setup(builder);
     devices.push(device);
   }

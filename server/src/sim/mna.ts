@@ -21,6 +21,8 @@ export interface Unknown {
 export interface SetupContext {
   /** Unknown number of a netlist node (0 for ground). */
   node(name: string): number;
+  /** Unknown number of the element's node at `position` (its place on the netlist line), as the compiler numbered it. */
+  terminal(position: number): number;
   /** A new internal node voltage owned by the device. */
   internalNode(owner: string, label: string): number;
   /** A new branch current owned by the device. */
@@ -139,6 +141,10 @@ export class StructureBuilder implements SetupContext {
   private entryCount = 1;
   /** Open-addressing hash table of slot numbers by (row, column); 0 marks an empty place. */
   private table: Int32Array;
+  /** The node numbers of the element being set up: terminalNumbers[terminalStart … terminalStart + terminalCount). */
+  private terminalNumbers: Int32Array = new Int32Array(0);
+  private terminalStart = 0;
+  private terminalCount = 0;
 
   /** `expectedSlots` only sizes the tables; they grow when it is exceeded. */
   constructor(nodeNames: readonly string[], expectedSlots = 0) {
@@ -167,6 +173,19 @@ export class StructureBuilder implements SetupContext {
     const index = this.add(NODE, name, 'node');
     this.nodeIndex.set(name, index);
     return index;
+  }
+
+  /** Says where the next device's node numbers are, before its setup(). */
+  beginElement(numbers: Int32Array, start: number, count: number): void {
+    this.terminalNumbers = numbers;
+    this.terminalStart = start;
+    this.terminalCount = count;
+  }
+
+  terminal(position: number): number {
+    // The compiler gives each device at least the nodes its type needs: anything else is a bug here.
+    if (!(position >= 0 && position < this.terminalCount)) throw new Error(`a device asked for node ${position + 1} of ${this.terminalCount}`);
+    return this.terminalNumbers[this.terminalStart + position];
   }
 
   hasNode(name: string): boolean {

@@ -99,14 +99,19 @@ export function newtonIterate(system: CircuitSystem, matrix: SparseMatrix, lu: S
       moved = true;
     } else {
       let worstExcess = 0;
+      const relative = settings.relativeTolerance;
+      const voltageTolerance = settings.voltageTolerance;
+      const currentTolerance = settings.currentTolerance;
       for (let i = 1; i < size; i++) {
         const a = previous[i];
         const b = next[i];
         if (!Number.isFinite(b)) return { status: 'not-finite', iterations: iteration, unknown: i };
-        const tolerance = settings.relativeTolerance * Math.max(Math.abs(a), Math.abs(b)) + (isCurrent[i] ? settings.currentTolerance : settings.voltageTolerance);
-        const excess = Math.abs(b - a) / tolerance;
-        if (excess > 1) {
+        const tolerance = relative * Math.max(Math.abs(a), Math.abs(b)) + (isCurrent[i] ? currentTolerance : voltageTolerance);
+        const step = Math.abs(b - a);
+        if (step > tolerance) {
           moved = true;
+          // Only the unknown that moved most is kept, for the message if Newton runs out of iterations.
+          const excess = step / tolerance;
           if (excess > worstExcess) {
             worstExcess = excess;
             worst = i;

@@ -163,7 +163,10 @@ export function solveOperatingPoint(compiled: CompiledCircuit, corner: Corner = 
     };
     const attempt = solveWithContinuation(compiled, state, settings, tolerances);
     const outcome = attempt.outcome;
-    for (const device of system.devices) diagnostics.push(...(device.solveDiagnostics?.() ?? []));
+    for (const device of system.devices) {
+      const found = device.solveDiagnostics?.();
+      if (found?.length) diagnostics.push(...found);
+    }
 
     switch (outcome.status) {
       case 'converged':

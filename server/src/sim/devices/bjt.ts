@@ -119,7 +119,7 @@ export class BjtDevice implements Device {
 
   setup(context: SetupContext): void {
     const p = this.parameters;
-    const [c, b, e] = this.element.nodes.map((name) => context.node(name));
+    const [c, b, e] = [context.terminal(0), context.terminal(1), context.terminal(2)];
     this.collector = c;
     this.base = b;
     this.emitter = e;

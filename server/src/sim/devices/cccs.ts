@@ -13,8 +13,8 @@ export class CccsDevice implements Device {
   constructor(readonly element: Cccs) {}
 
   setup(context: SetupContext): void {
-    this.a = context.node(this.element.nodes[0]);
-    this.b = context.node(this.element.nodes[1]);
+    this.a = context.terminal(0);
+    this.b = context.terminal(1);
   }
 
   bind(context: BindContext): void {

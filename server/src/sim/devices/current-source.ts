@@ -12,8 +12,8 @@ export class CurrentSourceDevice implements Device {
   constructor(readonly element: CurrentSource) {}
 
   setup(context: SetupContext): void {
-    this.a = context.node(this.element.nodes[0]);
-    this.b = context.node(this.element.nodes[1]);
+    this.a = context.terminal(0);
+    this.b = context.terminal(1);
   }
 
   prepare(conditions: CornerConditions): void {

@@ -18,8 +18,8 @@ export class CurrentSwitchDevice implements Device {
   }
 
   setup(context: SetupContext): void {
-    this.a = context.node(this.element.nodes[0]);
-    this.b = context.node(this.element.nodes[1]);
+    this.a = context.terminal(0);
+    this.b = context.terminal(1);
     this.slots = conductanceSlots(context, this.a, this.b);
   }
 

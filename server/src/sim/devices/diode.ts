@@ -86,6 +86,96 @@ export function effectiveSaturationCurrent(modelSaturationCurrent: number, minim
   return modelSaturationCurrent === 0 ? 0 : Math.max(modelSaturationCurrent, minimum);
 }
 
+/** A diode model's values at one temperature and area, as the Newton loads use them. */
+interface DiodeAtTemperature {
+  temperature: number;
+  nominalTemperature: number;
+  area: number;
+  gmin: number;
+  relativeTolerance: number;
+  minimumSaturationCurrent: number;
+  saturationCurrent: number;
+  emissionThermalVoltage: number;
+  breakdownThermalVoltage: number;
+  criticalVoltage: number;
+  /** Junction voltage magnitude at which breakdown current equals Is (ngspice's shifted BV); Infinity without BV. */
+  knee: number;
+  /** False when the knee's bisection ran out of iterations (the closest fit is used). */
+  kneeMatched: boolean;
+  seriesConductance: number;
+  forwardKneeCurrent: number;
+}
+
+/** ngspice's placement of the breakdown knee: the shifted voltage at which the current at −BV equals IBV (ngspice 39 diotemp.c). */
+function breakdownKnee(
+  breakdownVoltage: number,
+  breakdownCurrent: number,
+  saturation: number,
+  breakdownThermalVoltage: number,
+  vt: number,
+  relativeTolerance: number,
+): { knee: number; matched: boolean } {
+  const nbvVt = breakdownThermalVoltage;
+  if (breakdownCurrent < (saturation * breakdownVoltage) / vt) return { knee: breakdownVoltage, matched: true };
+  const tolerance = relativeTolerance * breakdownCurrent;
+  let knee = breakdownVoltage - nbvVt * Math.log(1 + breakdownCurrent / saturation);
+  for (let i = 0; i < BREAKDOWN_KNEE_ITERATIONS; i++) {
+    knee = breakdownVoltage - nbvVt * Math.log(breakdownCurrent / saturation + 1 - knee / vt);
+    const current = saturation * (Math.exp((breakdownVoltage - knee) / nbvVt) - 1 + knee / vt);
+    if (Math.abs(current - breakdownCurrent) <= tolerance) return { knee, matched: true };
+  }
+  return { knee, matched: false };
+}
+
+/** The last values computed per model: thousands of diodes of one model at one corner share them (no exp or log per instance). */
+const lastValues = new WeakMap<DiodeParameters, DiodeAtTemperature>();
+
+function diodeAtTemperature(p: DiodeParameters, area: number, temperature: number, nominalTemperature: number, conditions: CornerConditions): DiodeAtTemperature {
+  const last = lastValues.get(p);
+  if (
+    last &&
+    last.temperature === temperature &&
+    last.nominalTemperature === nominalTemperature &&
+    last.area === area &&
+    last.gmin === conditions.gmin &&
+    last.relativeTolerance === conditions.relativeTolerance &&
+    last.minimumSaturationCurrent === conditions.minimumSaturationCurrent
+  ) {
+    return last;
+  }
+  const vt = thermalVoltage(temperature);
+  const vte = p.emissionCoefficient * vt;
+  const breakdownThermalVoltage = p.breakdownEmissionCoefficient * vt;
+  const ratio = temperature / nominalTemperature;
+  // Saturation current's temperature law (SPICE3 user's manual): Is(T) = Is·(T/Tnom)^(XTI/N)·exp((T/Tnom − 1)·EG/(N·Vt)).
+  const saturationCurrent =
+    effectiveSaturationCurrent(p.saturationCurrent, conditions.minimumSaturationCurrent) *
+    area *
+    Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
+  // IBV is not scaled by area at level 1 (ngspice 39: an area-2 diode still carries IBV at −BV).
+  const knee = Number.isFinite(p.breakdownVoltage)
+    ? breakdownKnee(p.breakdownVoltage, p.breakdownCurrent, saturationCurrent, breakdownThermalVoltage, vt, conditions.relativeTolerance)
+    : { knee: Infinity, matched: true };
+  const values: DiodeAtTemperature = {
+    temperature,
+    nominalTemperature,
+    area,
+    gmin: conditions.gmin,
+    relativeTolerance: conditions.relativeTolerance,
+    minimumSaturationCurrent: conditions.minimumSaturationCurrent,
+    saturationCurrent,
+    emissionThermalVoltage: vte,
+    breakdownThermalVoltage,
+    criticalVoltage: criticalVoltage(vte, saturationCurrent),
+    knee: knee.knee,
+    kneeMatched: knee.matched,
+    seriesConductance: p.seriesResistance > 0 ? area / p.seriesResistance : 0,
+    forwardKneeCurrent: p.forwardKneeCurrent * area,
+  };
+  lastValues.set(p, values);
+  return values;
+}
+
 export class DiodeDevice implements Device {
   readonly linear = false;
   readonly parameters: DiodeParameters;
@@ -112,7 +202,7 @@ export class DiodeDevice implements Device {
   private seriesConductance = 0;
   private forwardKneeCurrent = 0;
   private gmin = 0;
-  private readonly warnings: NetlistDiagnostic[] = [];
+  private warnings: NetlistDiagnostic[] | undefined;
 
   // Iteration state: the last junction voltage loaded, its current and conductance.
   private stateVoltage = 0;
@@ -135,8 +225,8 @@ export class DiodeDevice implements Device {
   }
 
   setup(context: SetupContext): void {
-    this.anode = context.node(this.element.nodes[0]);
-    this.cathode = context.node(this.element.nodes[1]);
+    this.anode = context.terminal(0);
+    this.cathode = context.terminal(1);
     this.junctionAnode = this.parameters.seriesResistance > 0 ? context.internalNode(this.element.name, 'junction side of RS') : this.anode;
     const a = this.anode;
     const k = this.cathode;
@@ -152,44 +242,26 @@ export class DiodeDevice implements Device {
 
   prepare(conditions: CornerConditions): void {
     const p = this.parameters;
-    const area = this.area;
-    this.temperature = this.instanceTemperature !== undefined ? this.instanceTemperature + ZERO_CELSIUS_IN_KELVIN : conditions.temperature;
+    const temperature = this.instanceTemperature !== undefined ? this.instanceTemperature + ZERO_CELSIUS_IN_KELVIN : conditions.temperature;
     const nominal = p.nominalTemperatureCelsius !== undefined ? p.nominalTemperatureCelsius + ZERO_CELSIUS_IN_KELVIN : conditions.nominalTemperature;
-    const vt = thermalVoltage(this.temperature);
-    const vte = p.emissionCoefficient * vt;
-    this.emissionThermalVoltage = vte;
-    this.breakdownThermalVoltage = p.breakdownEmissionCoefficient * vt;
-    const ratio = this.temperature / nominal;
-    // Saturation current's temperature law (SPICE3 user's manual): Is(T) = Is·(T/Tnom)^(XTI/N)·exp((T/Tnom − 1)·EG/(N·Vt)).
-    this.saturationCurrent =
-      effectiveSaturationCurrent(p.saturationCurrent, conditions.minimumSaturationCurrent) * area * Math.exp(((ratio - 1) * p.activationEnergy) / vte + (p.saturationCurrentExponent / p.emissionCoefficient) * Math.log(ratio));
-    this.criticalVoltage = criticalVoltage(vte, this.saturationCurrent);
-    this.seriesConductance = p.seriesResistance > 0 ? area / p.seriesResistance : 0;
-    this.forwardKneeCurrent = p.forwardKneeCurrent * area;
+    const values = diodeAtTemperature(p, this.area, temperature, nominal, conditions);
+    this.temperature = temperature;
+    this.saturationCurrent = values.saturationCurrent;
+    this.emissionThermalVoltage = values.emissionThermalVoltage;
+    this.breakdownThermalVoltage = values.breakdownThermalVoltage;
+    this.criticalVoltage = values.criticalVoltage;
+    this.knee = values.knee;
+    this.seriesConductance = values.seriesConductance;
+    this.forwardKneeCurrent = values.forwardKneeCurrent;
     this.gmin = conditions.gmin;
-    // IBV is not scaled by area at level 1 (ngspice 39: an area-2 diode still carries IBV at −BV).
-    this.knee = Number.isFinite(p.breakdownVoltage) ? this.breakdownKnee(p.breakdownVoltage, p.breakdownCurrent, vt, conditions.relativeTolerance) : Infinity;
-  }
-
-  /** ngspice's placement of the breakdown knee: the shifted voltage at which the current at −BV equals IBV. */
-  private breakdownKnee(breakdownVoltage: number, breakdownCurrent: number, vt: number, relativeTolerance: number): number {
-    const saturation = this.saturationCurrent;
-    const nbvVt = this.breakdownThermalVoltage;
-    if (breakdownCurrent < (saturation * breakdownVoltage) / vt) return breakdownVoltage;
-    const tolerance = relativeTolerance * breakdownCurrent;
-    let knee = breakdownVoltage - nbvVt * Math.log(1 + breakdownCurrent / saturation);
-    for (let i = 0; i < BREAKDOWN_KNEE_ITERATIONS; i++) {
-      knee = breakdownVoltage - nbvVt * Math.log(breakdownCurrent / saturation + 1 - knee / vt);
-      const current = saturation * (Math.exp((breakdownVoltage - knee) / nbvVt) - 1 + knee / vt);
-      if (Math.abs(current - breakdownCurrent) <= tolerance) return knee;
+    if (!values.kneeMatched) {
+      (this.warnings ??= []).push({
+        severity: 'info',
+        code: 'unsolved-circuit',
+        message: `${this.name}: the breakdown knee could not be matched to BV = ${p.breakdownVoltage} V and IBV = ${p.breakdownCurrent} A; the closest fit is used`,
+        location: this.element.location,
+      });
     }
-    this.warnings.push({
-      severity: 'info',
-      code: 'unsolved-circuit',
-      message: `${this.element.name}: the breakdown knee could not be matched to BV = ${breakdownVoltage} V and IBV = ${breakdownCurrent} A; the closest fit is used`,
-      location: this.element.location,
-    });
-    return knee;
   }
 
   reset(): void {
@@ -320,7 +392,7 @@ export class DiodeDevice implements Device {
   }
 
   solveDiagnostics(): NetlistDiagnostic[] {
-    return this.warnings.length ? this.warnings.splice(0) : NO_DIAGNOSTICS;
+    return this.warnings?.length ? this.warnings.splice(0) : NO_DIAGNOSTICS;
   }
 
   /** Temperature-adjusted values at the last prepared corner, for the checks and tests. */

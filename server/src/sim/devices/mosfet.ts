@@ -102,7 +102,7 @@ export class MosfetDevice implements Device {
 
   setup(context: SetupContext): void {
     const p = this.parameters;
-    const [d, g, s, b] = this.element.nodes.map((name) => context.node(name));
+    const [d, g, s, b] = [context.terminal(0), context.terminal(1), context.terminal(2), context.terminal(3)];
     this.drain = d;
     this.gate = g;
     this.source = s;

@@ -26,8 +26,8 @@ export class ResistorDevice implements Device {
   }
 
   setup(context: SetupContext): void {
-    this.a = context.node(this.element.nodes[0]);
-    this.b = context.node(this.element.nodes[1]);
+    this.a = context.terminal(0);
+    this.b = context.terminal(1);
     this.slotAA = context.slot(this.a, this.a);
     this.slotAB = context.slot(this.a, this.b);
     this.slotBA = context.slot(this.b, this.a);

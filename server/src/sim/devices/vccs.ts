@@ -11,7 +11,7 @@ export class VccsDevice implements Device {
   constructor(readonly element: Vccs) {}
 
   setup(context: SetupContext): void {
-    const [a, b, c, d] = this.element.nodes.map((name) => context.node(name));
+    const [a, b, c, d] = [context.terminal(0), context.terminal(1), context.terminal(2), context.terminal(3)];
     this.nodes = [a, b, c, d];
     this.slots = [context.slot(a, c), context.slot(a, d), context.slot(b, c), context.slot(b, d)];
   }

@@ -11,7 +11,7 @@ export class VcvsDevice implements Device {
   constructor(readonly element: Vcvs) {}
 
   setup(context: SetupContext): void {
-    const [a, b, c, d] = this.element.nodes.map((name) => context.node(name));
+    const [a, b, c, d] = [context.terminal(0), context.terminal(1), context.terminal(2), context.terminal(3)];
     const k = (this.branch = context.branch(this.element.name));
     this.slots = [context.slot(a, k), context.slot(b, k), context.slot(k, a), context.slot(k, b), context.slot(k, c), context.slot(k, d)];
   }

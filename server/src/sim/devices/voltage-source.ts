@@ -15,8 +15,8 @@ export class VoltageSourceDevice implements Device {
   constructor(readonly element: VoltageSource | Inductor) {}
 
   setup(context: SetupContext): void {
-    this.a = context.node(this.element.nodes[0]);
-    this.b = context.node(this.element.nodes[1]);
+    this.a = context.terminal(0);
+    this.b = context.terminal(1);
     this.branch = context.branch(this.element.name);
     const k = this.branch;
     this.slots = [context.slot(this.a, k), context.slot(this.b, k), context.slot(k, this.a), context.slot(k, this.b)];

@@ -16,7 +16,7 @@ export class VoltageSwitchDevice implements Device {
   }
 
   setup(context: SetupContext): void {
-    this.nodes = this.element.nodes.map((name) => context.node(name));
+    this.nodes = [context.terminal(0), context.terminal(1), context.terminal(2), context.terminal(3)];
     this.slots = conductanceSlots(context, this.nodes[0], this.nodes[1]);
   }
 
