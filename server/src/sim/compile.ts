@@ -197,6 +197,8 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
   diagnostics.push(...structure.diagnostics);
 
   const devices: Device[] = [];
+  // Branch current unknown of each voltage-defined element (V, L, E, H), by lower-cased name.
+  const branchByName = new Map<string, number>();
   for (let i = 0; i < count; i++) {
     if (!active[i]) continue;
     const device = createDevice(elements[i]);
@@ -204,10 +206,10 @@ function compileUnguarded(circuit: Circuit): CompiledCircuit {
     builder.beginElement(nodeNumbers, nodeStart[i], nodeStart[i + 1] - nodeStart[i]);
     device.setup(builder);
     devices.push(device);
-  }
-  const branchByName = new Map<string, number>();
-  for (const device of devices) {
-    if (device instanceof VoltageSourceDevice || device instanceof VcvsDevice || device instanceof CcvsDevice) branchByName.set(device.element.name.toLowerCase(), device.branch);
+    const type = types[i];
+    if (type === 'V' || type === 'L' || type === 'E' || type === 'H') {
+      branchByName.set(elements[i].name.toLowerCase(), (device as VoltageSourceDevice | VcvsDevice | CcvsDevice).branch);
+    }
   }
   // One context for every device that looks up another's branch (F, H, W).
   const binding: BindContext = {

@@ -15,15 +15,20 @@ export function isGiven(model: Model, names: readonly string[]): boolean {
 }
 
 const cache = new WeakMap<Model, WeakMap<object, unknown>>();
+/** The last reading handed out: consecutive instances usually share a model, and this skips two WeakMap lookups for them. */
+let last: { model: Model; read: object; value: unknown } | undefined;
 
 /**
  * Model-derived parameters depend only on the `.model` card, so instances sharing a model
  * share one reading (thousands of identical diodes are common in generated netlists).
  */
 export function cachedByModel<E extends { model: Model }, P>(read: (element: E) => P, element: E): P {
-  let byReader = cache.get(element.model);
-  if (!byReader) cache.set(element.model, (byReader = new WeakMap()));
+  const model = element.model;
+  if (last && last.model === model && last.read === read) return last.value as P;
+  let byReader = cache.get(model);
+  if (!byReader) cache.set(model, (byReader = new WeakMap()));
   let value = byReader.get(read) as P | undefined;
   if (value === undefined) byReader.set(read, (value = read(element)));
+  last = { model, read, value };
   return value;
 }
