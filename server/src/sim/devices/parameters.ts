@@ -15,7 +15,7 @@ export function isGiven(model: Model, names: readonly string[]): boolean {
 }
 
 const cache = new WeakMap<Model, WeakMap<object, unknown>>();
-/** The last reading handed out: consecutive instances usually share a model, and this skips two WeakMap lookups for them. */
+/** The last reading handed out: consecutive instances usually share a model, and this skips two WeakMap lookups for them (it keeps that one model alive until another is read). */
 let last: { model: Model; read: object; value: unknown } | undefined;
 
 /**
