@@ -325,7 +325,8 @@ function sourceStepping(run: Run, state: NewtonState, settings: NewtonSettings, 
 
 function buildPoint(compiled: CompiledCircuit, solution: Float64Array, corner: string, method: Method, iterations: number, milliseconds: number): OperatingPoint {
   const nodes: Record<string, number> = { '0': 0 };
-  for (const [name, index] of compiled.nodeIndex) nodes[name] = index === 0 ? 0 : solution[index];
+  // forEach, not for…of: no [name, index] pair allocated per node.
+  compiled.nodeIndex.forEach((index, name) => (nodes[name] = index === 0 ? 0 : solution[index]));
   const branches: Record<string, number> = {};
   const terminals: Record<string, number[]> = {};
   const diodes: Record<string, DiodeOperatingPoint> = {};
