@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeFolder, startServer, type TestClient } from './harness.js';
 
-/** An invented indicator panel big enough that its check takes seconds: LED branches on one rail. */
+/** An invented indicator panel big enough that its check takes a while: LED branches on one rail. */
 function ledPanel(branches: number): string {
   const lines = ['big indicator panel', 'V1 vcc 0 DC 5', '.model DRED D(IS=1e-20 N=1.9 RS=2)'];
   for (let i = 1; i <= branches; i++) lines.push(`R${i} vcc n${i} 330`, `D${i} n${i} 0 DRED`);
@@ -23,13 +23,15 @@ describe('responsiveness', () => {
     workspace.cleanup();
   });
 
-  // 1,000 LED branches: a check of many seconds, so that the requests below arrive while it runs.
-  const BIG = ledPanel(1000);
+  // 20,000 LED branches: a check of seconds even on a quiet machine (about 1 s per 8,000 branches
+  // here), so that the requests below, sent 50 ms after opening, arrive while it runs.
+  const BIG = ledPanel(20_000);
+  const WHILE_CHECKING_MILLISECONDS = 50;
 
   it('answers a hover while a big circuit is being checked', async () => {
     const uri = workspace.uri('big.cir');
     client.open(uri, BIG);
-    await new Promise((resolve) => setTimeout(resolve, 300));
+    await new Promise((resolve) => setTimeout(resolve, WHILE_CHECKING_MILLISECONDS));
     await client.request('textDocument/hover', { textDocument: { uri }, position: { line: 3, character: 1 } });
     // Answered while the check still runs: in the protocol thread it would have waited for it.
     expect(client.publishedFor(uri)).toEqual([]);
@@ -39,7 +41,7 @@ describe('responsiveness', () => {
   it('a newer edit cancels the analysis of the older text', async () => {
     const uri = workspace.uri('edited.cir');
     client.open(uri, BIG);
-    await new Promise((resolve) => setTimeout(resolve, 300));
+    await new Promise((resolve) => setTimeout(resolve, WHILE_CHECKING_MILLISECONDS));
     client.change(uri, 2, [{ text: SMALL }]);
     const published = await client.diagnostics(uri, { version: 2 });
     expect(published.version).toBe(2);
