@@ -152,3 +152,17 @@ describe('pnlint op', () => {
     expect(pnlint(['op', 'missing.cir'], folder).code).toBe(2);
   });
 });
+
+describe('pnlint demo', () => {
+  it('exits 0 and shows, per example, the fixes --fix would apply one after another', () => {
+    const run = pnlint(['demo'], root, { NO_COLOR: '1' });
+    expect(run.code).toBe(0);
+    const lamp = run.stdout.slice(run.stdout.indexOf('reversed-lamp.cir —'));
+    const planned = lamp.slice(lamp.indexOf('--fix would apply:'), lamp.indexOf('\n==')).split('\n').slice(1).filter((line) => line.trim());
+    // Turned around, the LED conducts and no longer sees reverse voltage (a forward-biased
+    // junction; common practice, no source): the flip alone fixes both findings, so the
+    // guard diode offered for the reverse voltage is not applied after it.
+    expect(planned).toHaveLength(1);
+    expect(planned[0]).toMatch(/^\s+Turn DLAMP around/);
+  });
+});

@@ -1,9 +1,9 @@
 // `pnlint check`: many files in one process; findings as text, JSON or SARIF; `--fix`.
 import { writeFileSync } from 'node:fs';
 import { analyze, type Analysis } from '../analysis.js';
-import { applyEdits } from '../edits.js';
 import type { Finding } from '../findings.js';
 import { createDiskReader, expandInputs, findConfig, writeFileAtomically } from './files.js';
+import { planPreferredFixes } from './fix-plan.js';
 import { countFindings, formatJson, formatSarif, formatText, type FileReport } from './report.js';
 import { packageVersion } from './version.js';
 
@@ -13,9 +13,6 @@ export interface CheckOptions {
   fix: boolean;
   output?: string;
 }
-
-/** How many rounds `--fix` may take: each round applies one verified fix and re-checks. */
-const FIX_ROUND_LIMIT = 50;
 
 export async function runCheck(options: CheckOptions): Promise<number> {
   const cwd = process.cwd();
@@ -79,54 +76,15 @@ function checkFile(file: string): { analysis?: Analysis; error?: string } {
   return { analysis: analyze({ uri: file, text, files: reader, config: findConfig(file) }) };
 }
 
-/**
- * Applies preferred fixes one at a time, re-checking after each (every fix was verified
- * alone, not together with the others), then writes each changed file atomically.
- */
+/** Applies the preferred fixes as planned, then writes each changed file atomically. */
 function applyPreferredFixes(file: string, first: Analysis): { written: boolean; notes: string[] } {
-  const notes: string[] = [];
-  const original = new Map<string, string>(); // uri → text as read from disk
-  const current = new Map<string, string>();
-  let analysis = first;
-  for (let round = 0; round < FIX_ROUND_LIMIT; round++) {
-    const fix = analysis.findings.flatMap((finding) => finding.fixes).find((candidate) => candidate.preferred);
-    if (!fix) break;
-    let applied = true;
-    for (const uri of new Set(fix.edits.map((edit) => edit.uri))) {
-      if (!original.has(uri)) {
-        const onDisk = readText(uri);
-        if (onDisk === undefined) {
-          applied = false;
-          break;
-        }
-        original.set(uri, onDisk);
-      }
-      const before = current.get(uri) ?? original.get(uri)!;
-      const after = applyEdits(before, fix.edits.filter((edit) => edit.uri === uri));
-      if (after === undefined) {
-        applied = false;
-        break;
-      }
-      current.set(uri, after);
-    }
-    if (!applied) {
-      notes.push(`pnlint: could not apply "${fix.title}" to ${file}; left as it was`);
-      break;
-    }
-    notes.push(`pnlint: fixed ${file}: ${fix.title}`);
-    const reader = createDiskReader();
-    for (const [uri, text] of current) reader.texts.set(uri, text);
-    analysis = analyze({ uri: file, text: reader.read(file)!, files: reader, config: findConfig(file) });
-  }
+  const plan = planPreferredFixes(file, first);
+  const notes = [...plan.applied.map((title) => `pnlint: fixed ${file}: ${title}`), ...plan.problems.map((problem) => `pnlint: ${file}: ${problem}`)];
   let written = false;
-  for (const [uri, text] of current) {
-    const outcome = writeFileAtomically(uri, text, original.get(uri)!);
+  for (const [uri, text] of plan.fixed) {
+    const outcome = writeFileAtomically(uri, text, plan.original.get(uri)!);
     if (outcome.ok) written = true;
     else notes.push(`pnlint: did not write ${uri}: ${outcome.reason}`);
   }
   return { written, notes };
-}
-
-function readText(uri: string): string | undefined {
-  return createDiskReader().read(uri);
 }

@@ -1,4 +1,5 @@
-// `npm run demo`: checks the bundled example netlists and shows what `--fix` would do.
+// `npm run demo`: checks the bundled example netlists and shows what `--fix` would do
+// (without writing anything).
 // It exits 0 whenever it ran, whatever it found: the findings are the point.
 import { readdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
@@ -6,6 +7,7 @@ import { join, relative } from 'node:path';
 import { analyze } from '../analysis.js';
 import { createDiskReader, findConfig } from './files.js';
 import { formatText } from './report.js';
+import { planPreferredFixes } from './fix-plan.js';
 
 export function examplesFolder(): string {
   return fileURLToPath(new URL('../../examples/', import.meta.url));
@@ -29,11 +31,13 @@ export async function runDemo(): Promise<number> {
     const title = analysis.circuit?.title ?? analysis.syntax.statements.find((s) => s.kind === 'title');
     process.stdout.write(`\n== ${relative(process.cwd(), path)}${typeof title === 'string' ? ` — ${title}` : ''}\n`);
     process.stdout.write(formatText([{ path, findings: analysis.findings }], process.cwd(), colour));
-    const preferred = analysis.findings.flatMap((finding) => finding.fixes.filter((fix) => fix.preferred));
-    if (preferred.length) {
+    // What `check --fix` would do: one verified fix at a time, re-checked before the next.
+    const plan = planPreferredFixes(path, analysis);
+    if (plan.applied.length) {
       process.stdout.write('  --fix would apply:\n');
-      for (const fix of preferred) process.stdout.write(`    ${fix.title}\n`);
+      for (const title of plan.applied) process.stdout.write(`    ${title}\n`);
     }
+    for (const problem of plan.problems) process.stdout.write(`  --fix: ${problem}\n`);
   }
   return 0;
 }
