@@ -166,3 +166,15 @@ describe('pnlint demo', () => {
     expect(planned[0]).toMatch(/^\s+Turn DLAMP around/);
   });
 });
+
+describe('pnlint check output order', () => {
+  it('lists a file\'s findings in line order, whatever stage found them', () => {
+    // The LED problem is on line 3; a `.model` with no name on line 5 does not parse.
+    writeFileSync(join(folder, 'mixed.cir'), ['mixed problems', 'V1 vcc 0 DC 5', 'D1 vcc 0 DRED', '.model DRED D(IS=1e-20 N=1.7 RS=2)', '.model', '.end', ''].join('\n'));
+    const report = JSON.parse(pnlint(['check', 'mixed.cir', '--format', 'json'], folder).stdout);
+    const lines = report.files[0].findings.map((f: { range: { start: { line: number } } }) => f.range.start.line);
+    expect(lines).toContain(3);
+    expect(lines).toContain(5);
+    expect(lines).toEqual([...lines].sort((a: number, b: number) => a - b));
+  });
+});

@@ -42,7 +42,8 @@ export async function runCheck(options: CheckOptions): Promise<number> {
       seen.add(key);
       byFile.set(finding.location.uri, [...(byFile.get(finding.location.uri) ?? []), finding]);
     }
-    for (const [path, findings] of byFile) reports.push({ path, findings });
+    // In file order, as a person reads them (syntax findings come from an earlier stage than the rules).
+    for (const [path, findings] of byFile) reports.push({ path, findings: findings.sort(byPosition) });
   }
 
   const rendered =
@@ -63,6 +64,10 @@ export async function runCheck(options: CheckOptions): Promise<number> {
 
   if (ioError) return 2;
   return countFindings(reports).errors > 0 ? 1 : 0;
+}
+
+function byPosition(a: Finding, b: Finding): number {
+  return a.location.range.start.offset - b.location.range.start.offset;
 }
 
 function useColour(): boolean {

@@ -49,6 +49,16 @@ export function formatOperatingPointJson(analysis: Analysis): string {
   return JSON.stringify(operatingPointJson(analysis), null, 2) + '\n';
 }
 
+/**
+ * Node voltages below this are shown as 0 V: they are rounding residue (e.g. a SIN source's
+ * sin(0) at its nominal corner), a million times below SPICE's default vntol of 1 µV.
+ */
+const DISPLAY_ZERO_VOLTAGE = 1e-12;
+
+function volts(value: number): string {
+  return formatQuantity(Math.abs(value) < DISPLAY_ZERO_VOLTAGE ? 0 : value, 'V');
+}
+
 function table(header: string[], rows: string[][]): string[] {
   const widths = header.map((title, column) => Math.max(title.length, ...rows.map((row) => (row[column] ?? '').length)));
   const line = (cells: string[]) => cells.map((cell, column) => cell.padEnd(widths[column]!)).join('  ').trimEnd();
@@ -88,7 +98,7 @@ export function formatOperatingPointText(analysis: Analysis): string {
       return;
     }
     const point = solve.point;
-    out.push(...table(['node', 'voltage'], Object.entries(point.nodes).map(([node, volts]) => [node, formatQuantity(volts, 'V')])).map((l) => `  ${l}`));
+    out.push(...table(['node', 'voltage'], Object.entries(point.nodes).map(([node, value]) => [node, volts(value)])).map((l) => `  ${l}`));
     out.push('');
     out.push(...table(['element', 'current'], Object.entries(point.branches).map(([element, amps]) => [element, formatQuantity(amps, 'A')])).map((l) => `  ${l}`));
     const diodes = Object.entries(point.diodes);
@@ -99,7 +109,7 @@ export function formatOperatingPointText(analysis: Analysis): string {
           ['diode', 'Vf/Vr', 'If', 'P', 'region', 'worst margin'],
           diodes.map(([element, d]) => [
             element,
-            formatQuantity(d.voltage, 'V'),
+            volts(d.voltage),
             formatQuantity(d.current, 'A'),
             formatQuantity(d.power, 'W'),
             d.region,
