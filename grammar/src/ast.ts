@@ -1,5 +1,8 @@
 // The typed syntax tree of a SPICE netlist. Every node carries its exact
-// source range so that diagnostics, hovers and edits land where the user wrote.
+// source span (offsets) so that diagnostics, hovers and edits land where the user
+// wrote; the parse result's line index turns a span into lines and columns.
+// (Offsets rather than line/column objects: a 10 MB file has millions of nodes,
+// and three position objects per node were most of the parser's allocation.)
 // The grammar knows nothing of circuits: element lines keep their fields in a
 // generic form, and `server/src/netlist` reads them per element letter.
 
@@ -15,6 +18,14 @@ export interface Range {
   end: Position;
 }
 
+/** Where a node is written: UTF-16 offsets into the text, `end` exclusive. */
+export interface Span {
+  start: number;
+  end: number;
+}
+
+import type { LineIndex } from './positions.js';
+
 export type Severity = 'error' | 'warning' | 'info';
 
 /** A problem found while reading the text. `code` is a rule id, e.g. `syntax`. */
@@ -28,18 +39,18 @@ export interface ParseDiagnostic {
 // ---------------------------------------------------------------- expressions
 
 export type Expr =
-  | { kind: 'num'; value: number; text: string; range: Range }
-  | { kind: 'ident'; name: string; range: Range }
-  | { kind: 'unary'; op: '-' | '+' | '!'; operand: Expr; range: Range }
+  | { kind: 'num'; value: number; text: string; span: Span }
+  | { kind: 'ident'; name: string; span: Span }
+  | { kind: 'unary'; op: '-' | '+' | '!'; operand: Expr; span: Span }
   | {
       kind: 'binary';
       op: '+' | '-' | '*' | '/' | '^' | '**' | '%' | '==' | '!=' | '<' | '<=' | '>' | '>=' | '&&' | '||';
       left: Expr;
       right: Expr;
-      range: Range;
+      span: Span;
     }
-  | { kind: 'ternary'; condition: Expr; whenTrue: Expr; whenFalse: Expr; range: Range }
-  | { kind: 'call'; name: string; args: Expr[]; range: Range };
+  | { kind: 'ternary'; condition: Expr; whenTrue: Expr; whenFalse: Expr; span: Span }
+  | { kind: 'call'; name: string; args: Expr[]; span: Span };
 
 // --------------------------------------------------------------------- fields
 // The words of an element line or of a dot command, classified but not interpreted.
@@ -48,7 +59,7 @@ export type Expr =
 export interface WordField {
   kind: 'word';
   text: string;
-  range: Range;
+  span: Span;
 }
 
 /** A numeric literal as SPICE reads it (`4.7k`, `1uF`, `10`); `text` is kept so `1` can also be a node name. */
@@ -57,19 +68,19 @@ export interface NumberField {
   text: string;
   /** The value a SPICE engine reads: leading number times scale factor; the rest of the word ignored. */
   value: number;
-  range: Range;
+  span: Span;
 }
 
 /**
  * A `{…}` or `'…'` expression, or an undelimited one (`.param a = 2*b`, a `.func` body, an `.if`
- * condition). `text` is the source text that `range` covers, delimiters included.
+ * condition). `text` is the source text that `span` covers, delimiters included.
  * `expr` is undefined when its text does not parse (a diagnostic says why).
  */
 export interface ExpressionField {
   kind: 'expression';
   text: string;
   expr: Expr | undefined;
-  range: Range;
+  span: Span;
 }
 
 /** `key=value`; the value may itself be a group, e.g. `ic=(1,2)`. */
@@ -82,7 +93,7 @@ export interface AssignField {
   /** Set when the key is an expression (`TABLE {v(a)} = (0,0) (1,1)`): the expression as parsed. */
   keyExpression?: ExpressionField;
   value: Field;
-  range: Range;
+  span: Span;
 }
 
 /** A parenthesised list, with the word before it when there is one: `SIN(0 1 1k)`, `v(out)`, `(is=1e-14)`. */
@@ -90,7 +101,7 @@ export interface GroupField {
   kind: 'group';
   name: WordField | undefined;
   items: Field[];
-  range: Range;
+  span: Span;
 }
 
 export type Field = WordField | NumberField | ExpressionField | AssignField | GroupField;
@@ -100,11 +111,11 @@ export type Field = WordField | NumberField | ExpressionField | AssignField | Gr
 export interface InlineComment {
   /** The text after `;` or ` $`, without the marker. */
   text: string;
-  range: Range;
+  span: Span;
 }
 
 interface StatementBase {
-  range: Range;
+  span: Span;
   /** An inline comment at the end of the statement's (last) line. */
   comment?: InlineComment;
   /** True when the line has a syntax error (a diagnostic says where): the fields are what could be read. */
@@ -147,8 +158,8 @@ export interface SubcktStatement extends StatementBase {
   /** Defaults from `params:` (or bare `key=value` after the ports). */
   params: AssignField[];
   body: Statement[];
-  /** The `.ends` line's range; undefined when it is missing (a diagnostic says so). */
-  ends: Range | undefined;
+  /** The `.ends` line's span; undefined when it is missing (a diagnostic says so). */
+  ends: Span | undefined;
 }
 
 export interface ParamStatement extends StatementBase {
@@ -167,14 +178,14 @@ export interface FuncStatement extends StatementBase {
 export interface IncludeStatement extends StatementBase {
   kind: 'include';
   path: string;
-  pathRange: Range;
+  pathSpan: Span;
 }
 
 /** `.lib path section`: pull one section out of a library file. */
 export interface LibReferenceStatement extends StatementBase {
   kind: 'libReference';
   path: string;
-  pathRange: Range;
+  pathSpan: Span;
   section: WordField;
 }
 
@@ -183,7 +194,7 @@ export interface LibSectionStatement extends StatementBase {
   kind: 'libSection';
   name: WordField;
   body: Statement[];
-  endl: Range | undefined;
+  endl: Span | undefined;
 }
 
 export interface GlobalStatement extends StatementBase {
@@ -195,13 +206,13 @@ export interface IfBranch {
   /** undefined for `.else`. */
   condition: ExpressionField | undefined;
   body: Statement[];
-  range: Range;
+  span: Span;
 }
 
 export interface IfStatement extends StatementBase {
   kind: 'if';
   branches: IfBranch[];
-  endif: Range | undefined;
+  endif: Span | undefined;
 }
 
 /** `.control` … `.endc`, kept opaque: it is a script for the simulator's shell, not circuit. */
@@ -223,7 +234,7 @@ export interface EndStatement extends StatementBase {
 export interface DotStatement extends StatementBase {
   kind: 'dot';
   command: string;
-  commandRange: Range;
+  commandSpan: Span;
   known: boolean;
   fields: Field[];
 }
@@ -254,4 +265,6 @@ export interface ParseResult {
   /** Top-level statements in source order; subcircuit, `.lib` section and `.if` bodies are nested. */
   statements: Statement[];
   diagnostics: ParseDiagnostic[];
+  /** Lines and columns of the text: `lines.range(node.span)`. */
+  lines: LineIndex;
 }

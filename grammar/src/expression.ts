@@ -5,8 +5,7 @@
 // scale factors (`2*1k`, `1meg`), read by the one value reader.
 
 import { createToken, EmbeddedActionsParser, EOF, Lexer, type IToken, type TokenType } from 'chevrotain';
-import type { Expr, Range } from './ast.js';
-import type { LineIndex } from './positions.js';
+import type { Expr, Span } from './ast.js';
 import { readSpiceValue } from './values.js';
 
 const Blank = createToken({ name: 'Blank', pattern: /[ \t\r\n\f\v\uFEFF]+/, group: Lexer.SKIPPED });
@@ -69,7 +68,6 @@ const BINDING = new Map<TokenType, number>([
 class ExpressionParser extends EmbeddedActionsParser {
   /** Maps the lexed slice's offsets into the whole text. */
   base = 0;
-  index: LineIndex | undefined;
   // The operands and operators of the binary chains being read, each chain above where it
   // began (a chain may hold a parenthesised one); counts rather than `length = 0`, which would
   // give up the lists' storage.
@@ -97,16 +95,16 @@ class ExpressionParser extends EmbeddedActionsParser {
     return this.RECORDING_PHASE || this.LA(1).tokenType === type;
   }
 
-  private range(start: number, end: number): Range {
-    return this.index!.range(this.base + start, this.base + end);
+  private span(start: number, end: number): Span {
+    return { start: this.base + start, end: this.base + end };
   }
 
-  private tokenRange(token: IToken): Range {
-    return this.range(token.startOffset, token.startOffset + token.image.length);
+  private tokenSpan(token: IToken): Span {
+    return this.span(token.startOffset, token.startOffset + token.image.length);
   }
 
-  private join(left: Expr, right: Expr): Range {
-    return { start: left.range.start, end: right.range.end };
+  private join(left: Expr, right: Expr): Span {
+    return { start: left.span.start, end: right.span.end };
   }
 
   whole = this.RULE('whole', (): Expr => {
@@ -125,7 +123,7 @@ class ExpressionParser extends EmbeddedActionsParser {
       this.CONSUME(Colon);
       const whenFalse = this.SUBRULE2(this.ternary);
       if (this.RECORDING_PHASE) return;
-      result = { kind: 'ternary', condition, whenTrue, whenFalse, range: this.join(condition, whenFalse) };
+      result = { kind: 'ternary', condition, whenTrue, whenFalse, span: this.join(condition, whenFalse) };
     });
     return result;
   });
@@ -156,7 +154,7 @@ class ExpressionParser extends EmbeddedActionsParser {
   });
 
   private binaryNode(operator: IToken, left: Expr, right: Expr): Expr {
-    return { kind: 'binary', op: operator.image as BinaryOp, left, right, range: this.join(left, right) };
+    return { kind: 'binary', op: operator.image as BinaryOp, left, right, span: this.join(left, right) };
   }
 
   /** Groups the chain gathered above the bases by precedence, each level from the left (operator-precedence parsing). */
@@ -189,7 +187,7 @@ class ExpressionParser extends EmbeddedActionsParser {
 
   private prefixed(op: IToken, operand: Expr): Expr {
     if (this.RECORDING_PHASE) return operand;
-    return { kind: 'unary', op: op.image as '-' | '+' | '!', operand, range: { start: this.tokenRange(op).start, end: operand.range.end } };
+    return { kind: 'unary', op: op.image as '-' | '+' | '!', operand, span: { start: this.base + op.startOffset, end: operand.span.end } };
   }
 
   private readonly unaryAlternatives = [
@@ -213,7 +211,7 @@ class ExpressionParser extends EmbeddedActionsParser {
       const op = this.CONSUME(Power);
       const exponent = this.SUBRULE(this.exponent);
       if (this.RECORDING_PHASE) return;
-      result = { kind: 'binary', op: op.image as '^' | '**', left: result, right: exponent, range: this.join(result, exponent) };
+      result = { kind: 'binary', op: op.image as '^' | '**', left: result, right: exponent, span: this.join(result, exponent) };
     });
     return result;
   });
@@ -236,13 +234,13 @@ class ExpressionParser extends EmbeddedActionsParser {
       ALT: (): Expr => {
         const token = this.CONSUME(NumberLiteral);
         if (this.RECORDING_PHASE) return undefined as unknown as Expr;
-        return { kind: 'num', value: readSpiceValue(token.image) ?? Number.NaN, text: token.image, range: this.tokenRange(token) };
+        return { kind: 'num', value: readSpiceValue(token.image) ?? Number.NaN, text: token.image, span: this.tokenSpan(token) };
       },
     },
     {
       ALT: (): Expr => {
         const name = this.CONSUME(Identifier);
-        if (!this.next(Open)) return { kind: 'ident', name: name.image, range: this.tokenRange(name) };
+        if (!this.next(Open)) return { kind: 'ident', name: name.image, span: this.tokenSpan(name) };
         let call: { args: Expr[]; close: IToken } | undefined;
         this.OPTION(() => {
           this.CONSUME(Open);
@@ -258,8 +256,8 @@ class ExpressionParser extends EmbeddedActionsParser {
           call = { args, close };
         });
         if (this.RECORDING_PHASE) return undefined as unknown as Expr;
-        if (!call) return { kind: 'ident', name: name.image, range: this.tokenRange(name) };
-        return { kind: 'call', name: name.image, args: call.args, range: this.range(name.startOffset, call.close.startOffset + 1) };
+        if (!call) return { kind: 'ident', name: name.image, span: this.tokenSpan(name) };
+        return { kind: 'call', name: name.image, args: call.args, span: this.span(name.startOffset, call.close.startOffset + 1) };
       },
     },
     {
@@ -285,7 +283,7 @@ export function validateExpressionGrammar(): void {
 
 export interface ExpressionProblem {
   message: string;
-  range: Range;
+  span: Span;
 }
 
 export interface ExpressionReading {
@@ -340,8 +338,8 @@ function unclosedParenthesis(tokens: IToken[]): IToken | undefined {
   return open[open.length - 1];
 }
 
-/** Parses `source`, which is written at `base` in the text that `index` describes. Never throws. */
-export function readExpression(source: string, base: number, index: LineIndex): ExpressionReading {
+/** Parses `source`, which is written at offset `base` in the text. Never throws. */
+export function readExpression(source: string, base: number): ExpressionReading {
   const lexed = expressionLexer.tokenize(blankContinuations(source));
   if (lexed.errors.length > 0) {
     const error = lexed.errors[0]!;
@@ -350,20 +348,19 @@ export function readExpression(source: string, base: number, index: LineIndex): 
       expr: undefined,
       problem: {
         message: `unexpected \`${character}\` in the expression`,
-        range: index.range(base + error.offset, base + error.offset + Math.max(1, error.length)),
+        span: { start: base + error.offset, end: base + error.offset + Math.max(1, error.length) },
       },
     };
   }
   if (lexed.tokens.length === 0) {
-    return { expr: undefined, problem: { message: 'the expression is empty', range: index.range(base, base + source.length) } };
+    return { expr: undefined, problem: { message: 'the expression is empty', span: { start: base, end: base + source.length } } };
   }
   const tooDeep = tooDeeplyNested(lexed.tokens);
   if (tooDeep) {
     const at = base + tooDeep.startOffset;
-    return { expr: undefined, problem: { message: `the expression nests more than ${MAX_EXPRESSION_NESTING} deep`, range: index.range(at, at + tooDeep.image.length) } };
+    return { expr: undefined, problem: { message: `the expression nests more than ${MAX_EXPRESSION_NESTING} deep`, span: { start: at, end: at + tooDeep.image.length } } };
   }
   parser ??= new ExpressionParser(true);
-  parser.index = index;
   parser.base = base;
   parser.input = lexed.tokens;
   let expr: Expr | undefined;
@@ -372,11 +369,9 @@ export function readExpression(source: string, base: number, index: LineIndex): 
   } catch (failure) {
     // Only a stack overflow can get here, on input the nesting check did not foresee.
     if (!(failure instanceof RangeError)) throw failure;
-    parser.index = undefined;
-    return { expr: undefined, problem: { message: 'the expression is too deeply nested to read', range: index.range(base, base + source.length) } };
+    return { expr: undefined, problem: { message: 'the expression is too deeply nested to read', span: { start: base, end: base + source.length } } };
   }
   const error = parser.errors[0];
-  parser.index = undefined;
   if (!error || expr === undefined) {
     if (!error && expr !== undefined) return { expr, problem: undefined };
   }
@@ -385,16 +380,16 @@ export function readExpression(source: string, base: number, index: LineIndex): 
     const open = unclosedParenthesis(lexed.tokens);
     if (open) {
       const at = base + open.startOffset;
-      return { expr: undefined, problem: { message: 'this `(` is not closed', range: index.range(at, at + 1) } };
+      return { expr: undefined, problem: { message: 'this `(` is not closed', span: { start: at, end: at + 1 } } };
     }
     const end = base + source.length;
-    return { expr: undefined, problem: { message: 'the expression ends too early', range: index.range(end, end) } };
+    return { expr: undefined, problem: { message: 'the expression ends too early', span: { start: end, end: end } } };
   }
   return {
     expr: undefined,
     problem: {
       message: `unexpected \`${token.image}\` in the expression`,
-      range: index.range(base + token.startOffset, base + token.startOffset + token.image.length),
+      span: { start: base + token.startOffset, end: base + token.startOffset + token.image.length },
     },
   };
 }

@@ -6,7 +6,7 @@
 // the actions, so that one bad line never disturbs the next.
 
 import { createTokenInstance, EmbeddedActionsParser, type IToken, type TokenType } from 'chevrotain';
-import type { ExpressionField, Field, GroupField, Range, WordField, NumberField, AssignField } from './ast.js';
+import type { ExpressionField, Field, GroupField, Span, WordField, NumberField, AssignField } from './ast.js';
 import { readExpression, type ExpressionProblem } from './expression.js';
 import {
   BraceExpression,
@@ -37,21 +37,16 @@ export class FieldMaker {
 
   constructor(readonly index: LineIndex) {}
 
-  report(message: string, range: Range): void {
-    this.problem ??= { message, range };
+  report(message: string, span: Span): void {
+    this.problem ??= { message, span };
   }
 
-  tokenRange(token: IToken): Range {
-    return this.index.range(token.startOffset, token.startOffset + token.image.length);
-  }
-
-  /** The range of a token that stays on one line: words, `=`, `(`, … (not expressions, which may run on). */
-  wordRange(token: IToken): Range {
-    return this.index.lineRange(token.startOffset, token.startOffset + token.image.length);
+  tokenSpan(token: IToken): Span {
+    return { start: token.startOffset, end: token.startOffset + token.image.length };
   }
 
   word(token: IToken): WordField {
-    return { kind: 'word', text: token.image, range: this.wordRange(token) };
+    return { kind: 'word', text: token.image, span: this.tokenSpan(token) };
   }
 
   /** A word that begins like a number is a number (`4k7`, `1uF`, `-5`); its text is kept. */
@@ -59,30 +54,29 @@ export class FieldMaker {
     const text = token.image;
     if (beginsLikeNumber(text)) {
       const value = readSpiceValue(text);
-      if (value !== undefined) return { kind: 'number', text, value, range: this.wordRange(token) };
+      if (value !== undefined) return { kind: 'number', text, value, span: this.tokenSpan(token) };
     }
-    return { kind: 'word', text, range: this.wordRange(token) };
+    return { kind: 'word', text, span: this.tokenSpan(token) };
   }
 
-  /** A `{…}` or `'…'` token. `text` is as written, with its delimiters; the range covers them. */
+  /** A `{…}` or `'…'` token. `text` is as written, with its delimiters; the span covers them. */
   delimitedExpression(token: IToken): ExpressionField {
     const text = token.image;
-    const range = this.tokenRange(token);
+    const span = this.tokenSpan(token);
     const close = text.charCodeAt(0) === 123 ? '}' : "'";
     if (text.length < 2 || !text.endsWith(close)) {
-      const opening = this.index.range(token.startOffset, token.startOffset + 1);
-      this.report(`this \`${text[0]}\` is not closed on its line`, opening);
-      return { kind: 'expression', text, expr: undefined, range };
+      this.report(`this \`${text[0]}\` is not closed on its line`, { start: token.startOffset, end: token.startOffset + 1 });
+      return { kind: 'expression', text, expr: undefined, span };
     }
-    return this.expression(text, token.startOffset, 1, 1, range);
+    return this.expression(text, token.startOffset, 1, 1, span);
   }
 
   /** An expression written at `start` in the text; `skipStart`/`skipEnd` characters are delimiters. */
-  expression(text: string, start: number, skipStart: number, skipEnd: number, range: Range): ExpressionField {
+  expression(text: string, start: number, skipStart: number, skipEnd: number, span: Span): ExpressionField {
     const inner = text.slice(skipStart, text.length - skipEnd);
-    const reading = readExpression(inner, start + skipStart, this.index);
-    if (reading.problem) this.report(reading.problem.message, reading.problem.range);
-    return { kind: 'expression', text, expr: reading.expr, range };
+    const reading = readExpression(inner, start + skipStart);
+    if (reading.problem) this.report(reading.problem.message, reading.problem.span);
+    return { kind: 'expression', text, expr: reading.expr, span };
   }
 
   /**
@@ -90,13 +84,13 @@ export class FieldMaker {
    * expression as in `TABLE {v(a)} = (0,0) (1,1)`; a group or expression key is kept whole too.
    */
   assign(key: Field, value: Field): AssignField {
-    const range = { start: key.range.start, end: value.range.end };
-    if (key.kind === 'word') return { kind: 'assign', key, value, range };
-    const text = this.index.text.slice(key.range.start.offset, key.range.end.offset);
-    const word: WordField = { kind: 'word', text, range: key.range };
-    if (key.kind === 'group') return { kind: 'assign', key: word, keyGroup: key, value, range };
-    if (key.kind === 'expression') return { kind: 'assign', key: word, keyExpression: key, value, range };
-    return { kind: 'assign', key: word, value, range };
+    const span = { start: key.span.start, end: value.span.end };
+    if (key.kind === 'word') return { kind: 'assign', key, value, span };
+    const text = this.index.text.slice(key.span.start, key.span.end);
+    const word: WordField = { kind: 'word', text, span: key.span };
+    if (key.kind === 'group') return { kind: 'assign', key: word, keyGroup: key, value, span };
+    if (key.kind === 'expression') return { kind: 'assign', key: word, keyExpression: key, value, span };
+    return { kind: 'assign', key: word, value, span };
   }
 }
 
@@ -158,7 +152,7 @@ class FieldParser extends EmbeddedActionsParser {
   }
 
   private stray(token: IToken, message: string): void {
-    if (!this.RECORDING_PHASE) this.maker!.report(message, this.maker!.tokenRange(token));
+    if (!this.RECORDING_PHASE) this.maker!.report(message, this.maker!.tokenSpan(token));
   }
 
   /** True when the next token is of `type`, or while the grammar is recorded (every path is visited then). */
@@ -287,10 +281,10 @@ class FieldParser extends EmbeddedActionsParser {
     if (close) end = close.startOffset + 1;
     else {
       const last = items[items.length - 1];
-      if (last) end = last.range.end.offset;
-      maker.report('this `(` is not closed on its line', maker.tokenRange(open));
+      if (last) end = last.span.end;
+      maker.report('this `(` is not closed on its line', maker.tokenSpan(open));
     }
-    return { kind: 'group', name: undefined, items, range: maker.index.range(open.startOffset, end) };
+    return { kind: 'group', name: undefined, items, span: { start: open.startOffset, end } };
   });
 
   private readonly valueAlternatives = [
@@ -333,13 +327,13 @@ class FieldParser extends EmbeddedActionsParser {
     let value: Field;
     if (first) value = first;
     else {
-      maker.report('a value is missing after this `=`', maker.tokenRange(equals));
+      maker.report('a value is missing after this `=`', maker.tokenSpan(equals));
       const after = equals.startOffset + 1;
-      value = { kind: 'word', text: '', range: maker.index.range(after, after) };
+      value = { kind: 'word', text: '', span: { start: after, end: after } };
     }
     if (!rest) return value;
     const items = [value, ...rest];
-    return { kind: 'group', name: undefined, items, range: { start: value.range.start, end: items[items.length - 1]!.range.end } };
+    return { kind: 'group', name: undefined, items, span: { start: value.span.start, end: items[items.length - 1]!.span.end } };
   });
 }
 
@@ -353,13 +347,13 @@ function wordWithTails(token: IToken, group: GroupField | undefined, value: Fiel
   return key ?? maker.wordOrNumber(token);
 }
 
-/** A group written right after a word: the word names it, and its range starts there. */
+/** A group written right after a word: the word names it, and its span starts there. */
 function named(group: GroupField, token: IToken, maker: FieldMaker): GroupField {
   const name = maker.word(token);
   group.name = name;
-  // The group's range was made by the group rule and is shared with nothing yet: it is moved
+  // The group's span was made by the group rule and is shared with nothing yet: it is moved
   // to start at the name rather than replaced.
-  group.range.start = name.range.start;
+  group.span.start = name.span.start;
   return group;
 }
 

@@ -8,7 +8,7 @@
 // 4. Each line becomes a statement; blocks (`.subckt`, `.lib`, `.if`) are nested.
 
 import type { IToken } from 'chevrotain';
-import type { ParseDiagnostic, ParseOptions, ParseResult, Statement } from './ast.js';
+import type { ParseOptions, ParseResult, Statement } from './ast.js';
 import { END_OF_LINE, FieldMaker, readFieldLines, type FieldLine } from './fields.js';
 import {
   atLineStart,
@@ -25,7 +25,7 @@ import {
 } from './lexer.js';
 import { LineIndex } from './positions.js';
 import { nestBlocks } from './structure.js';
-import { MAX_NESTING, readsFieldsFrom, StatementBuilder, type LineResult, type LogicalLine } from './statements.js';
+import { MAX_NESTING, readsFieldsFrom, StatementBuilder, type LineResult, type LogicalLine, type SpanDiagnostic } from './statements.js';
 
 /** What a chunk's tokens group into: a logical line still to read, or a finished statement. */
 type Item = LogicalLine | Statement;
@@ -38,6 +38,7 @@ export function parse(text: string, options: ParseOptions = {}): ParseResult {
     const message = failure instanceof Error ? failure.message : String(failure);
     return {
       statements: [],
+      lines: new LineIndex(typeof text === 'string' ? text : ''),
       diagnostics: [
         {
           severity: 'error',
@@ -61,7 +62,7 @@ const CHUNK_SIZE = 64 * 1024;
 function parseUnguarded(text: string, options: ParseOptions): ParseResult {
   const index = new LineIndex(text);
   const maker = new FieldMaker(index);
-  const diagnostics: ParseDiagnostic[] = [];
+  const diagnostics: SpanDiagnostic[] = [];
   const builder = new StatementBuilder(maker, diagnostics);
   const results: LineResult[] = [];
   const controlBlocks = findControlBlocks(text);
@@ -70,7 +71,7 @@ function parseUnguarded(text: string, options: ParseOptions): ParseResult {
     start = titleLineEnd(text);
     // A byte-order mark is not part of the title.
     const bom = text.charCodeAt(0) === 0xfeff ? 1 : 0;
-    if (start > bom) results.push({ kind: 'title', text: text.slice(bom, start), range: index.range(bom, start) });
+    if (start > bom) results.push({ kind: 'title', text: text.slice(bom, start), span: { start: bom, end: start } });
   }
   let ended = false;
   while (start < text.length && !ended) {
@@ -83,11 +84,15 @@ function parseUnguarded(text: string, options: ParseOptions): ParseResult {
     start = end;
   }
   const statements = nestBlocks(results, diagnostics);
-  diagnostics.sort((a, b) => a.range.start.offset - b.range.start.offset);
-  return { statements, diagnostics };
+  diagnostics.sort((a, b) => a.span.start - b.span.start);
+  return {
+    statements,
+    diagnostics: diagnostics.map(({ span, ...rest }) => ({ ...rest, range: index.range(span) })),
+    lines: index,
+  };
 }
 
-function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilder, diagnostics: ParseDiagnostic[], results: LineResult[]): void {
+function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilder, diagnostics: SpanDiagnostic[], results: LineResult[]): void {
   // Every element line and most dot commands go through the field parser, in one call per
   // chunk: their tokens, each line ended by an end-of-line token, are its input.
   const fieldInput: IToken[] = [];
@@ -102,7 +107,7 @@ function readChunk(tokens: IToken[], maker: FieldMaker, builder: StatementBuilde
       results.push(builder.build(item, undefined, undefined));
     } else {
       // The grammar accepts everything; should it ever stop early, the unread lines say so.
-      const reading: FieldLine = fieldLines[next++] ?? { fields: [], problem: { message: 'this line could not be read', range: maker.tokenRange(item.first) } };
+      const reading: FieldLine = fieldLines[next++] ?? { fields: [], problem: { message: 'this line could not be read', span: maker.tokenSpan(item.first) } };
       results.push(builder.build(item, reading.fields, reading.problem));
     }
   }
@@ -176,7 +181,7 @@ function nextStatementStart(text: string, from: number): number {
  * of the lines that the field parser reads go to `fieldInput`, each line followed by
  * END_OF_LINE.
  */
-function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagnostic[], fieldInput: IToken[]): Item[] {
+function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: SpanDiagnostic[], fieldInput: IToken[]): Item[] {
   const items: Item[] = [];
   let current: LogicalLine | undefined;
   /** Where the current line's tokens begin in `fieldInput`. */
@@ -208,7 +213,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
     }
     if (type === CommentLine) {
       // A comment line may stand between a line and its continuation: it does not end the statement.
-      items.push({ kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) });
+      items.push({ kind: 'comment', text: token.image.slice(1), span: maker.tokenSpan(token) });
       continue;
     }
     if (type === Continuation) {
@@ -221,7 +226,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
         severity: 'error',
         code: 'syntax',
         message: 'a `+` continuation line with no statement before it to continue',
-        range: maker.tokenRange(token),
+        span: maker.tokenSpan(token),
       });
       finish();
       afterBreak = false;
@@ -231,7 +236,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
     if (type === InlineComment && (afterBreak || !current)) {
       // A line holding only a `;` or `$` comment reads as a comment line, and like one it
       // may stand between a line and its continuation.
-      if (!skipping || afterBreak) items.push({ kind: 'comment', text: token.image.slice(1), range: maker.tokenRange(token) });
+      if (!skipping || afterBreak) items.push({ kind: 'comment', text: token.image.slice(1), span: maker.tokenSpan(token) });
       continue;
     }
     if (afterBreak) {
@@ -253,7 +258,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
     }
     if (type === EndAndRest) {
       const word = /^\.end/i.exec(token.image)![0];
-      items.push({ kind: 'end', range: maker.index.range(token.startOffset, token.startOffset + word.length) });
+      items.push({ kind: 'end', span: { start: token.startOffset, end: token.startOffset + word.length } });
       finish();
       continue;
     }
@@ -278,7 +283,7 @@ function groupLines(tokens: IToken[], maker: FieldMaker, diagnostics: ParseDiagn
 /** The `tokens` of every line that the field parser reads: never added to. */
 const NO_TOKENS: IToken[] = [];
 
-function controlStatement(token: IToken, maker: FieldMaker, diagnostics: ParseDiagnostic[]): Statement {
+function controlStatement(token: IToken, maker: FieldMaker, diagnostics: SpanDiagnostic[]): Statement {
   const image = token.image;
   const firstBreak = image.search(/[\r\n]/);
   const lastLineStart = Math.max(image.lastIndexOf('\n'), image.lastIndexOf('\r')) + 1;
@@ -288,7 +293,7 @@ function controlStatement(token: IToken, maker: FieldMaker, diagnostics: ParseDi
       severity: 'error',
       code: 'syntax',
       message: '`.control` has no `.endc`',
-      range: maker.index.range(token.startOffset, token.startOffset + '.control'.length),
+      span: { start: token.startOffset, end: token.startOffset + '.control'.length },
     });
   }
   // The script: the lines between `.control` and `.endc`.
@@ -297,5 +302,5 @@ function controlStatement(token: IToken, maker: FieldMaker, diagnostics: ParseDi
     const bodyStart = image.charCodeAt(firstBreak) === 13 && image.charCodeAt(firstBreak + 1) === 10 ? firstBreak + 2 : firstBreak + 1;
     script = closed ? image.slice(bodyStart, Math.max(bodyStart, lastLineStart)) : image.slice(bodyStart);
   }
-  return { kind: 'control', text: script, range: maker.tokenRange(token) };
+  return { kind: 'control', text: script, span: maker.tokenSpan(token) };
 }

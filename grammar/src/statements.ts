@@ -6,12 +6,12 @@
 import type { IToken } from 'chevrotain';
 import type {
   AssignField,
+  ParseDiagnostic,
   DotStatement,
   ExpressionField,
   Field,
   InlineComment,
-  ParseDiagnostic,
-  Range,
+  Span,
   Statement,
   WordField,
 } from './ast.js';
@@ -44,12 +44,17 @@ export interface LogicalLine {
  */
 export const MAX_NESTING = 100;
 
+/** A problem found while reading, at a span; the parser turns its span into a range at the end. */
+export interface SpanDiagnostic extends Omit<ParseDiagnostic, 'range'> {
+  span: Span;
+}
+
 /** Lines that close or split a block; the structure pass consumes them. */
 export interface BlockMarker {
   kind: 'marker';
   command: 'ends' | 'endl' | 'elseif' | 'else' | 'endif';
-  range: Range;
-  commandRange: Range;
+  span: Span;
+  commandSpan: Span;
   name: WordField | undefined;
   condition: ExpressionField | undefined;
 }
@@ -134,48 +139,48 @@ const LONE_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?[A-Za-z0-9_.]*$/;
 export class StatementBuilder {
   constructor(
     private readonly maker: FieldMaker,
-    private readonly diagnostics: ParseDiagnostic[],
+    private readonly diagnostics: SpanDiagnostic[],
   ) {}
 
   private get text(): string {
     return this.maker.index.text;
   }
 
-  private error(message: string, range: Range): void {
-    this.diagnostics.push({ severity: 'error', code: 'syntax', message, range });
+  private error(message: string, span: Span): void {
+    this.diagnostics.push({ severity: 'error', code: 'syntax', message, span });
   }
 
   private inlineComment(line: LogicalLine): InlineComment | undefined {
     const token = line.comment;
     if (!token) return undefined;
-    return { text: token.image.slice(1), range: this.maker.tokenRange(token) };
+    return { text: token.image.slice(1), span: this.maker.tokenSpan(token) };
   }
 
   /** Builds the statement of one line; `fields` is the field parser's reading when it read the line. */
-  build(line: LogicalLine, fields: Field[] | undefined, fieldProblem: { message: string; range: Range } | undefined): LineResult {
+  build(line: LogicalLine, fields: Field[] | undefined, fieldProblem: { message: string; span: Span } | undefined): LineResult {
     const first = line.first;
-    const range = this.lineRange(line, fields);
+    const span = this.lineSpan(line);
     this.maker.problem = fieldProblem;
     const command = dotCommandOf(line);
     let result: LineResult;
     if (line.tooDeep) {
-      this.maker.report(`parentheses nested more than ${MAX_NESTING} deep: this line is not read`, this.maker.tokenRange(line.tooDeep));
+      this.maker.report(`parentheses nested more than ${MAX_NESTING} deep: this line is not read`, this.maker.tokenSpan(line.tooDeep));
       result = undefined;
     } else if (command === undefined) {
       if (!startsWithLetter(first)) {
-        this.maker.report('a netlist line starts with an element name (a letter), a dot command, `*` or `+`', this.maker.tokenRange(first));
+        this.maker.report('a netlist line starts with an element name (a letter), a dot command, `*` or `+`', this.maker.tokenSpan(first));
         result = undefined;
       } else if (isBehaviouralSource(first)) {
-        result = this.behaviouralSource(line, range);
+        result = this.behaviouralSource(line, span);
       } else {
-        result = this.element(fields!, range);
+        result = this.element(fields!, span);
       }
     } else {
-      result = this.dotCommand(command, line, fields, range);
+      result = this.dotCommand(command, line, fields, span);
     }
-    const problem = this.maker.problem as { message: string; range: Range } | undefined;
+    const problem = this.maker.problem as { message: string; span: Span } | undefined;
     this.maker.problem = undefined;
-    if (problem) this.error(problem.message, problem.range);
+    if (problem) this.error(problem.message, problem.span);
     if (result && result.kind !== 'marker') {
       const comment = this.inlineComment(line);
       if (comment) result.comment = comment;
@@ -184,30 +189,24 @@ export class StatementBuilder {
     return result;
   }
 
-  /** The statement's range; its ends are the very position objects of its first and last field when they coincide. */
-  private lineRange(line: LogicalLine, fields: Field[] | undefined): Range {
-    const index = this.maker.index;
-    const firstField = fields?.[0];
-    const lastField = fields?.[fields.length - 1];
-    const lineStart = line.first.startOffset;
-    const start = firstField && firstField.range.start.offset === lineStart ? firstField.range.start : index.position(lineStart);
-    const end = lastField && lastField.range.end.offset === line.end ? lastField.range.end : index.position(line.end);
-    return { start, end };
+  /** The statement's span: from its first token to its last (its inline comment included). */
+  private lineSpan(line: LogicalLine): Span {
+    return { start: line.first.startOffset, end: line.end };
   }
 
-  private element(fields: Field[], range: Range): Statement | undefined {
+  private element(fields: Field[], span: Span): Statement | undefined {
     const name = fields[0];
     if (!name || name.kind !== 'word') {
-      const at = name ? name.range : range;
+      const at = name ? name.span : span;
       this.maker.report('an element line starts with the element name', at);
       return undefined;
     }
     fields.shift(); // the array is ours; shifting spares a copy per line
-    return { kind: 'element', name, letter: name.text[0]!.toUpperCase(), fields, range };
+    return { kind: 'element', name, letter: name.text[0]!.toUpperCase(), fields, span };
   }
 
   /** `Bname n+ n- V=expr [tc1=…]`: two nodes, then `key=value` pairs whose values run up to the next `key=`. */
-  private behaviouralSource(line: LogicalLine, range: Range): Statement | undefined {
+  private behaviouralSource(line: LogicalLine, span: Span): Statement | undefined {
     const [nameToken, ...rest] = line.tokens;
     const name = this.maker.word(nameToken!);
     const fields: Field[] = [];
@@ -217,51 +216,51 @@ export class StatementBuilder {
       at++;
     }
     fields.push(...this.paramAssigns(rest, at));
-    return { kind: 'element', name, letter: 'B', fields, range };
+    return { kind: 'element', name, letter: 'B', fields, span };
   }
 
   private asWord(field: Field | undefined): WordField | undefined {
     if (!field) return undefined;
     if (field.kind === 'word') return field;
-    if (field.kind === 'number') return { kind: 'word', text: field.text, range: field.range };
+    if (field.kind === 'number') return { kind: 'word', text: field.text, span: field.span };
     return undefined;
   }
 
-  private dotCommand(command: string, line: LogicalLine, fields: Field[] | undefined, range: Range): LineResult {
+  private dotCommand(command: string, line: LogicalLine, fields: Field[] | undefined, span: Span): LineResult {
     const commandToken = line.first;
-    const commandRange = this.maker.tokenRange(commandToken);
+    const commandSpan = this.maker.tokenSpan(commandToken);
     const rest = fields ? fields.slice(1) : [];
     switch (command) {
       case 'model':
-        return this.model(rest, range, commandRange);
+        return this.model(rest, span, commandSpan);
       case 'subckt':
-        return this.subckt(rest, range, commandRange);
+        return this.subckt(rest, span, commandSpan);
       case 'ends':
       case 'endl':
-        return { kind: 'marker', command, range, commandRange, name: this.asWord(rest[0]), condition: undefined };
+        return { kind: 'marker', command, span, commandSpan, name: this.asWord(rest[0]), condition: undefined };
       case 'else':
       case 'endif':
-        return { kind: 'marker', command, range, commandRange, name: undefined, condition: undefined };
+        return { kind: 'marker', command, span, commandSpan, name: undefined, condition: undefined };
       case 'endc':
-        this.maker.report('`.endc` without a `.control` before it', commandRange);
+        this.maker.report('`.endc` without a `.control` before it', commandSpan);
         return undefined;
       case 'global':
-        return { kind: 'global', nodes: this.words(rest, '`.global` lists node names'), range };
+        return { kind: 'global', nodes: this.words(rest, '`.global` lists node names'), span };
       case 'param':
-        return { kind: 'param', assigns: this.paramAssigns(line.tokens, 1), range };
+        return { kind: 'param', assigns: this.paramAssigns(line.tokens, 1), span };
       case 'func':
-        return this.func(line.tokens, range, commandRange);
+        return this.func(line.tokens, span, commandSpan);
       case 'if':
       case 'elseif': {
-        const condition = this.condition(line.tokens, commandRange, command);
-        if (command === 'elseif') return { kind: 'marker', command, range, commandRange, name: undefined, condition };
-        return { kind: 'if', branches: [{ condition, body: [], range }], endif: undefined, range };
+        const condition = this.condition(line.tokens, commandSpan, command);
+        if (command === 'elseif') return { kind: 'marker', command, span, commandSpan, name: undefined, condition };
+        return { kind: 'if', branches: [{ condition, body: [], span }], endif: undefined, span };
       }
       case 'include':
       case 'inc':
-        return this.include(line.tokens, range, commandRange);
+        return this.include(line.tokens, span, commandSpan);
       case 'lib':
-        return this.lib(line.tokens, range, commandRange);
+        return this.lib(line.tokens, span, commandSpan);
       case 'title': {
         const titleFields: Field[] = [];
         const words = line.tokens.slice(1);
@@ -269,13 +268,13 @@ export class StatementBuilder {
           const start = words[0]!.startOffset;
           const last = words[words.length - 1]!;
           const end = last.startOffset + last.image.length;
-          titleFields.push({ kind: 'word', text: this.text.slice(start, end), range: this.maker.index.range(start, end) });
+          titleFields.push({ kind: 'word', text: this.text.slice(start, end), span: { start, end } });
         }
-        return { kind: 'dot', command: 'title', commandRange, known: true, fields: titleFields, range };
+        return { kind: 'dot', command: 'title', commandSpan, known: true, fields: titleFields, span };
       }
       default: {
         const known = DOT_COMMANDS[command];
-        const statement: DotStatement = { kind: 'dot', command: known ?? command, commandRange, known: known !== undefined, fields: rest, range };
+        const statement: DotStatement = { kind: 'dot', command: known ?? command, commandSpan, known: known !== undefined, fields: rest, span };
         if (known === undefined) {
           // Unknown to pnlint, perhaps known to some engine: its words are not judged.
           this.maker.problem = undefined;
@@ -283,7 +282,7 @@ export class StatementBuilder {
             severity: 'warning',
             code: 'unknown-command',
             message: `unknown dot command \`${commandToken.image}\`: pnlint does not read it`,
-            range: commandRange,
+            span: commandSpan,
           });
         }
         return statement;
@@ -296,12 +295,12 @@ export class StatementBuilder {
     for (const field of fields) {
       const word = this.asWord(field);
       if (word) words.push(word);
-      else this.maker.report(message, field.range);
+      else this.maker.report(message, field.span);
     }
     return words;
   }
 
-  private model(rest: Field[], range: Range, commandRange: Range): Statement | undefined {
+  private model(rest: Field[], span: Span, commandSpan: Span): Statement | undefined {
     const name = this.asWord(rest[0]);
     const typeField = rest[1];
     let type: WordField | undefined;
@@ -319,17 +318,17 @@ export class StatementBuilder {
       type = this.asWord(typeField);
     }
     if (!name || !type) {
-      this.maker.report('`.model` needs a name and a type, e.g. `.model DLED D(IS=1e-18 N=2)`', rest[0]?.range ?? commandRange);
+      this.maker.report('`.model` needs a name and a type, e.g. `.model DLED D(IS=1e-18 N=2)`', rest[0]?.span ?? commandSpan);
       return undefined;
     }
     rest.slice(2).forEach(take);
-    return { kind: 'model', name, type, params, extra, range };
+    return { kind: 'model', name, type, params, extra, span };
   }
 
-  private subckt(rest: Field[], range: Range, commandRange: Range): Statement | undefined {
+  private subckt(rest: Field[], span: Span, commandSpan: Span): Statement | undefined {
     const name = this.asWord(rest[0]);
     if (!name) {
-      this.maker.report('`.subckt` needs a name', rest[0]?.range ?? commandRange);
+      this.maker.report('`.subckt` needs a name', rest[0]?.span ?? commandSpan);
       return undefined;
     }
     const ports: WordField[] = [];
@@ -344,18 +343,18 @@ export class StatementBuilder {
       } else if (!inParams && this.asWord(field)) {
         ports.push(this.asWord(field)!);
       } else {
-        this.maker.report(inParams ? 'expected `name=default` after `params:`' : 'expected a port name', field.range);
+        this.maker.report(inParams ? 'expected `name=default` after `params:`' : 'expected a port name', field.span);
       }
     }
-    return { kind: 'subckt', name, ports, params, body: [], ends: undefined, range };
+    return { kind: 'subckt', name, ports, params, body: [], ends: undefined, span };
   }
 
   /** `params:r=1k` written without a space: the key is `r`. */
   private withoutParamsPrefix(field: AssignField): AssignField {
     const match = /^params:/i.exec(field.key.text);
     if (!match || field.key.text.length === match[0].length) return field;
-    const start = field.key.range.start.offset + match[0].length;
-    const key: WordField = { kind: 'word', text: field.key.text.slice(match[0].length), range: this.maker.index.range(start, field.key.range.end.offset) };
+    const start = field.key.span.start + match[0].length;
+    const key: WordField = { kind: 'word', text: field.key.text.slice(match[0].length), span: { start: start, end: field.key.span.end } };
     return { ...field, key };
   }
 
@@ -376,7 +375,7 @@ export class StatementBuilder {
   }
 
   private bareExpression(start: number, end: number): ExpressionField {
-    return this.maker.expression(this.text.slice(start, end), start, 0, 0, this.maker.index.range(start, end));
+    return this.maker.expression(this.text.slice(start, end), start, 0, 0, { start, end });
   }
 
   /** `a = 2*b  c={x}` from `tokens[from]` on: the value runs up to the next `name =`. */
@@ -395,12 +394,12 @@ export class StatementBuilder {
         continue;
       }
       if (key.tokenType !== Word) {
-        this.maker.report('expected a parameter name', this.maker.tokenRange(key));
+        this.maker.report('expected a parameter name', this.maker.tokenSpan(key));
         break;
       }
       const equals = tokens[at + 1];
       if (equals?.tokenType !== Equals) {
-        this.maker.report(`expected \`=\` and a value after \`${key.image}\``, this.maker.tokenRange(key));
+        this.maker.report(`expected \`=\` and a value after \`${key.image}\``, this.maker.tokenSpan(key));
         break;
       }
       const valueStart = at + 2;
@@ -409,21 +408,21 @@ export class StatementBuilder {
       let last = valueEnd;
       while (last > valueStart && tokens[last - 1]!.tokenType === Comma) last--;
       if (last === valueStart) {
-        this.maker.report('a value is missing after this `=`', this.maker.tokenRange(equals));
+        this.maker.report('a value is missing after this `=`', this.maker.tokenSpan(equals));
         break;
       }
       const value = this.valueOf(tokens.slice(valueStart, last));
       const keyField = this.maker.word(key);
-      assigns.push({ kind: 'assign', key: keyField, value, range: { start: keyField.range.start, end: value.range.end } });
+      assigns.push({ kind: 'assign', key: keyField, value, span: { start: keyField.span.start, end: value.span.end } });
       at = valueEnd;
     }
     return assigns;
   }
 
-  private func(tokens: IToken[], range: Range, commandRange: Range): Statement | undefined {
+  private func(tokens: IToken[], span: Span, commandSpan: Span): Statement | undefined {
     const nameToken = tokens[1];
     if (nameToken?.tokenType !== Word) {
-      this.maker.report('`.func` needs a name, e.g. `.func half(x) {x/2}`', nameToken ? this.maker.tokenRange(nameToken) : commandRange);
+      this.maker.report('`.func` needs a name, e.g. `.func half(x) {x/2}`', nameToken ? this.maker.tokenSpan(nameToken) : commandSpan);
       return undefined;
     }
     const name = this.maker.word(nameToken);
@@ -431,48 +430,48 @@ export class StatementBuilder {
     let at = 2;
     const open = tokens[at];
     if (open?.tokenType !== LeftParen) {
-      this.maker.report('expected `(` and the argument names after the function name', name.range);
-      return { kind: 'func', name, args, body: undefined, range };
+      this.maker.report('expected `(` and the argument names after the function name', name.span);
+      return { kind: 'func', name, args, body: undefined, span };
     }
     at++;
     while (at < tokens.length && tokens[at]!.tokenType !== RightParen) {
       const token = tokens[at]!;
       if (token.tokenType === Word) args.push(this.maker.word(token));
       else if (token.tokenType !== Comma) {
-        this.maker.report('expected an argument name', this.maker.tokenRange(token));
-        return { kind: 'func', name, args, body: undefined, range };
+        this.maker.report('expected an argument name', this.maker.tokenSpan(token));
+        return { kind: 'func', name, args, body: undefined, span };
       }
       at++;
     }
     if (at >= tokens.length) {
-      this.maker.report('this `(` is not closed', this.maker.tokenRange(open));
-      return { kind: 'func', name, args, body: undefined, range };
+      this.maker.report('this `(` is not closed', this.maker.tokenSpan(open));
+      return { kind: 'func', name, args, body: undefined, span };
     }
     at++;
     if (tokens[at]?.tokenType === Equals) at++;
     const bodyTokens = tokens.slice(at);
     if (bodyTokens.length === 0) {
-      this.maker.report('`.func` needs a body, e.g. `{x/2}`', name.range);
-      return { kind: 'func', name, args, body: undefined, range };
+      this.maker.report('`.func` needs a body, e.g. `{x/2}`', name.span);
+      return { kind: 'func', name, args, body: undefined, span };
     }
     const body = this.valueOf(bodyTokens);
     const expression: ExpressionField =
       body.kind === 'expression' ? body : this.bareExpression(bodyTokens[0]!.startOffset, this.tokenEnd(bodyTokens[bodyTokens.length - 1]!));
-    return { kind: 'func', name, args, body: expression, range };
+    return { kind: 'func', name, args, body: expression, span };
   }
 
   /** `.if(cond)` / `.elseif (cond)`: the condition between the parentheses (or the rest of the line). */
-  private condition(tokens: IToken[], commandRange: Range, command: string): ExpressionField | undefined {
+  private condition(tokens: IToken[], commandSpan: Span, command: string): ExpressionField | undefined {
     const words = tokens.slice(1);
     if (words.length === 0) {
-      this.maker.report(`\`.${command}\` needs a condition, e.g. \`.${command} (corner == 1)\``, commandRange);
+      this.maker.report(`\`.${command}\` needs a condition, e.g. \`.${command} (corner == 1)\``, commandSpan);
       return undefined;
     }
     const first = words[0]!;
     const last = words[words.length - 1]!;
     if (first.tokenType === LeftParen && last.tokenType === RightParen && words.length >= 2) {
       if (words.length === 2) {
-        this.maker.report('the condition is empty', this.maker.index.range(first.startOffset, this.tokenEnd(last)));
+        this.maker.report('the condition is empty', { start: first.startOffset, end: this.tokenEnd(last) });
         return undefined;
       }
       return this.bareExpression(words[1]!.startOffset, this.tokenEnd(words[words.length - 2]!));
@@ -481,60 +480,60 @@ export class StatementBuilder {
       return this.maker.delimitedExpression(first);
     }
     if (first.tokenType === LeftParen) {
-      this.maker.report('this `(` is not closed', this.maker.tokenRange(first));
+      this.maker.report('this `(` is not closed', this.maker.tokenSpan(first));
       return undefined;
     }
     return this.bareExpression(first.startOffset, this.tokenEnd(last));
   }
 
   /** A path: `"quoted"`, `'quoted'`, or the words as written. */
-  private path(words: IToken[]): { path: string; pathRange: Range; used: number } | undefined {
+  private path(words: IToken[]): { path: string; pathSpan: Span; used: number } | undefined {
     const first = words[0];
     if (!first) return undefined;
     if (first.tokenType === QuotedString || first.tokenType === QuoteExpression) {
       const quote = first.image[0]!;
       const closed = first.image.length >= 2 && first.image.endsWith(quote);
-      if (!closed) this.maker.report(`this \`${quote}\` is not closed on its line`, this.maker.index.range(first.startOffset, first.startOffset + 1));
+      if (!closed) this.maker.report(`this \`${quote}\` is not closed on its line`, { start: first.startOffset, end: first.startOffset + 1 });
       const start = first.startOffset + 1;
       const end = this.tokenEnd(first) - (closed ? 1 : 0);
-      return { path: this.text.slice(start, end), pathRange: this.maker.index.range(start, end), used: 1 };
+      return { path: this.text.slice(start, end), pathSpan: { start, end }, used: 1 };
     }
-    return { path: first.image, pathRange: this.maker.tokenRange(first), used: 1 };
+    return { path: first.image, pathSpan: this.maker.tokenSpan(first), used: 1 };
   }
 
-  private include(tokens: IToken[], range: Range, commandRange: Range): Statement | undefined {
+  private include(tokens: IToken[], span: Span, commandSpan: Span): Statement | undefined {
     const words = tokens.slice(1);
     const first = words[0];
     if (!first) {
-      this.maker.report('`.include` needs a file path', commandRange);
+      this.maker.report('`.include` needs a file path', commandSpan);
       return undefined;
     }
     if (first.tokenType === QuotedString || first.tokenType === QuoteExpression) {
-      const { path, pathRange } = this.path(words)!;
-      return { kind: 'include', path, pathRange, range };
+      const { path, pathSpan } = this.path(words)!;
+      return { kind: 'include', path, pathSpan, span };
     }
     // A bare path is everything written after the command, spaces included.
     const start = first.startOffset;
     const end = this.tokenEnd(words[words.length - 1]!);
-    return { kind: 'include', path: this.text.slice(start, end), pathRange: this.maker.index.range(start, end), range };
+    return { kind: 'include', path: this.text.slice(start, end), pathSpan: { start, end }, span };
   }
 
-  private lib(tokens: IToken[], range: Range, commandRange: Range): Statement | undefined {
+  private lib(tokens: IToken[], span: Span, commandSpan: Span): Statement | undefined {
     const words = tokens.slice(1);
     if (words.length === 0) {
-      this.maker.report('`.lib` needs a file path and a section name, or a section name', commandRange);
+      this.maker.report('`.lib` needs a file path and a section name, or a section name', commandSpan);
       return undefined;
     }
     const quoted = words[0]!.tokenType === QuotedString || words[0]!.tokenType === QuoteExpression;
     if (words.length === 1 && !quoted) {
-      return { kind: 'libSection', name: this.maker.word(words[0]!), body: [], endl: undefined, range };
+      return { kind: 'libSection', name: this.maker.word(words[0]!), body: [], endl: undefined, span };
     }
-    const { path, pathRange, used } = this.path(words)!;
+    const { path, pathSpan, used } = this.path(words)!;
     const sectionToken = words[used];
     if (!sectionToken || sectionToken.tokenType !== Word) {
-      this.maker.report('`.lib` with a file path needs the section name after it', sectionToken ? this.maker.tokenRange(sectionToken) : pathRange);
+      this.maker.report('`.lib` with a file path needs the section name after it', sectionToken ? this.maker.tokenSpan(sectionToken) : pathSpan);
       return undefined;
     }
-    return { kind: 'libReference', path, pathRange, section: this.maker.word(sectionToken), range };
+    return { kind: 'libReference', path, pathSpan, section: this.maker.word(sectionToken), span };
   }
 }

@@ -2,8 +2,8 @@
 // `.if`…`.elseif`…`.else`…`.endif` (any depth), and reports closers with nothing
 // to close and blocks left open.
 
-import type { IfStatement, LibSectionStatement, ParseDiagnostic, Range, Statement, SubcktStatement } from './ast.js';
-import type { BlockMarker, LineResult } from './statements.js';
+import type { IfStatement, LibSectionStatement, Span, Statement, SubcktStatement } from './ast.js';
+import type { BlockMarker, LineResult, SpanDiagnostic } from './statements.js';
 
 type Block = SubcktStatement | LibSectionStatement | IfStatement;
 
@@ -12,18 +12,18 @@ interface OpenBlock {
   /** Where the current body goes (for an `.if`, its latest branch). */
   body: Statement[];
   /** Where a missing closer is reported: the subcircuit's or section's name, the `.if`. */
-  reportAt: Range;
+  reportAt: Span;
   sawElse: boolean;
 }
 
 const CLOSER: Readonly<Record<Block['kind'], string>> = { subckt: '.ends', libSection: '.endl', if: '.endif' };
 
-function lastEnd(body: Statement[], fallback: Range): Range['end'] {
+function lastEnd(body: Statement[], fallback: Span): number {
   const last = body[body.length - 1];
-  return last && last.range.end.offset > fallback.end.offset ? last.range.end : fallback.end;
+  return last && last.span.end > fallback.end ? last.span.end : fallback.end;
 }
 
-export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagnostic[]): Statement[] {
+export function nestBlocks(items: readonly LineResult[], diagnostics: SpanDiagnostic[]): Statement[] {
   const root: Statement[] = [];
   const stack: OpenBlock[] = [];
   // How many blocks of each kind are open, and where each open subcircuit sits by name:
@@ -31,8 +31,8 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
   // that the pass stays linear however deep the nesting.
   const openCount: Record<Block['kind'], number> = { subckt: 0, libSection: 0, if: 0 };
   const subcircuitDepths = new Map<string, number[]>();
-  const error = (message: string, range: Range): void => {
-    diagnostics.push({ severity: 'error', code: 'syntax', message, range });
+  const error = (message: string, span: Span): void => {
+    diagnostics.push({ severity: 'error', code: 'syntax', message, span });
   };
 
   const add = (statement: Statement): void => {
@@ -74,14 +74,14 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
     while (stack.length - 1 > depth) leaveOpen(pop());
     const entry = pop();
     finishBranch(entry);
-    entry.block.range = { start: entry.block.range.start, end: marker.range.end };
+    entry.block.span = { start: entry.block.span.start, end: marker.span.end };
     return entry;
   };
 
   const finishBranch = (open: OpenBlock): void => {
     if (open.block.kind !== 'if') return;
     const branch = open.block.branches[open.block.branches.length - 1]!;
-    branch.range = { start: branch.range.start, end: lastEnd(branch.body, branch.range) };
+    branch.span = { start: branch.span.start, end: lastEnd(branch.body, branch.span) };
   };
 
   const leaveOpen = (open: OpenBlock): void => {
@@ -90,7 +90,7 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
     error(`${what} has no \`${CLOSER[block.kind]}\``, open.reportAt);
     finishBranch(open);
     const body = block.kind === 'if' ? block.branches[block.branches.length - 1]!.body : block.body;
-    block.range = { start: block.range.start, end: lastEnd(body, block.range) };
+    block.span = { start: block.span.start, end: lastEnd(body, block.span) };
   };
 
   for (const item of items) {
@@ -98,11 +98,11 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
     if (item.kind !== 'marker') {
       add(item);
       if (item.kind === 'subckt' || item.kind === 'libSection') {
-        open({ block: item, body: item.body, reportAt: item.name.range, sawElse: false });
+        open({ block: item, body: item.body, reportAt: item.name.span, sawElse: false });
       } else if (item.kind === 'if') {
         // The `.if` word itself, three characters at the statement's start.
-        const start = item.range.start;
-        const reportAt = { start, end: { line: start.line, column: start.column + 3, offset: start.offset + 3 } };
+        const start = item.span.start;
+        const reportAt = { start, end: start + 3 };
         open({ block: item, body: item.branches[0]!.body, reportAt, sawElse: false });
       }
       continue;
@@ -110,16 +110,16 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
     switch (item.command) {
       case 'ends': {
         const open = close('subckt', item);
-        if (!open) error('`.ends` without a `.subckt` to close', item.commandRange);
+        if (!open) error('`.ends` without a `.subckt` to close', item.commandSpan);
         else {
           const subckt = open.block as SubcktStatement;
-          subckt.ends = item.range;
+          subckt.ends = item.span;
           if (item.name && item.name.text.toLowerCase() !== subckt.name.text.toLowerCase()) {
             diagnostics.push({
               severity: 'warning',
               code: 'syntax',
               message: `\`.ends ${item.name.text}\` closes \`.subckt ${subckt.name.text}\``,
-              range: item.name.range,
+              span: item.name.span,
             });
           }
         }
@@ -127,29 +127,29 @@ export function nestBlocks(items: readonly LineResult[], diagnostics: ParseDiagn
       }
       case 'endl': {
         const open = close('libSection', item);
-        if (!open) error('`.endl` without a `.lib` section to close', item.commandRange);
-        else (open.block as LibSectionStatement).endl = item.range;
+        if (!open) error('`.endl` without a `.lib` section to close', item.commandSpan);
+        else (open.block as LibSectionStatement).endl = item.span;
         break;
       }
       case 'endif': {
         const open = close('if', item);
-        if (!open) error('`.endif` without an `.if` to close', item.commandRange);
-        else (open.block as IfStatement).endif = item.range;
+        if (!open) error('`.endif` without an `.if` to close', item.commandSpan);
+        else (open.block as IfStatement).endif = item.span;
         break;
       }
       case 'elseif':
       case 'else': {
         if (openCount.if === 0) {
-          error(`\`.${item.command}\` without an \`.if\``, item.commandRange);
+          error(`\`.${item.command}\` without an \`.if\``, item.commandSpan);
           break;
         }
         const depth = innermost('if');
         while (stack.length - 1 > depth) leaveOpen(pop());
         const entry = stack[depth]!;
-        if (entry.sawElse) error(`\`.${item.command}\` after \`.else\``, item.commandRange);
+        if (entry.sawElse) error(`\`.${item.command}\` after \`.else\``, item.commandSpan);
         if (item.command === 'else') entry.sawElse = true;
         finishBranch(entry);
-        const branch = { condition: item.condition, body: [] as Statement[], range: item.range };
+        const branch = { condition: item.condition, body: [] as Statement[], span: item.span };
         (entry.block as IfStatement).branches.push(branch);
         entry.body = branch.body;
         break;

@@ -9,7 +9,6 @@ import { elaborate } from '../../server/src/netlist/index.js';
 import { checkCircuit } from '../../server/src/checks/index.js';
 import { DEFAULT_SETTINGS } from '../../server/src/settings.js';
 import { createFixProvider } from '../../server/src/fixes/index.js';
-import { LineIndex } from '../../server/src/fixes/source-text.js';
 import type { Finding } from '../../server/src/findings.js';
 import { applyFix, atSource, checkWithFixes, expectFixHolds, MAIN_URI, memoryReader, ngspiceValue } from './support.js';
 
@@ -191,35 +190,5 @@ describe('a rack of many lamps', () => {
     const checked = checkWithFixes(rack, { fixes: { cancellation: { isCancellationRequested: true } } });
     expect(checked.statistics.verifications).toBe(0);
     expect(checked.findings.every((finding) => finding.fixes.length === 0)).toBe(true);
-  });
-});
-
-describe('line index', () => {
-  // Expected lines and columns counted by hand from the texts written here.
-  it('counts LF, CRLF and lone CR as line ends, as the grammar does', () => {
-    const text = 'a\nbc\r\nd\re';
-    const lines = new LineIndex(text);
-    expect(lines.positionAt(0)).toEqual({ line: 0, column: 0, offset: 0 });
-    expect(lines.positionAt(1)).toEqual({ line: 0, column: 1, offset: 1 }); // the \n itself
-    expect(lines.positionAt(2)).toEqual({ line: 1, column: 0, offset: 2 });
-    expect(lines.positionAt(5)).toEqual({ line: 1, column: 3, offset: 5 }); // the \n of \r\n
-    expect(lines.positionAt(6)).toEqual({ line: 2, column: 0, offset: 6 });
-    expect(lines.positionAt(8)).toEqual({ line: 3, column: 0, offset: 8 });
-    expect(lines.positionAt(9)).toEqual({ line: 3, column: 1, offset: 9 }); // end of text
-    expect(lines.lineStartOffset(4)).toBe(2);
-    expect(lines.lineEndOffset(2)).toBe(4);
-  });
-
-  it('keeps the line ending the file uses', () => {
-    expect(new LineIndex('a\r\nb\r\n').lineEnding).toBe('\r\n');
-    expect(new LineIndex('a\nb\n').lineEnding).toBe('\n');
-    expect(new LineIndex('a\rb\r').lineEnding).toBe('\r');
-    expect(new LineIndex('one line').lineEnding).toBe('\n');
-  });
-
-  it('finds positions deep in a long file', () => {
-    const text = 'R1 a b 1k\n'.repeat(20_000);
-    const lines = new LineIndex(text);
-    for (let line = 0; line < 20_000; line += 7) expect(lines.positionAt(line * 10 + 3)).toEqual({ line, column: 3, offset: line * 10 + 3 });
   });
 });

@@ -133,20 +133,21 @@ describe('expressions', () => {
     if (param.kind !== 'param') throw new Error('expected .param');
     const value = param.assigns[0]!.value;
     if (value.kind !== 'expression' || !value.expr || value.expr.kind !== 'binary') throw new Error('expected a sum');
-    const slice = (expr: Expr): string => text.slice(expr.range.start.offset, expr.range.end.offset);
+    const slice = (expr: Expr): string => text.slice(expr.span.start, expr.span.end);
     expect(slice(value.expr)).toBe('gain * 1k + offset');
     expect(slice(value.expr.left)).toBe('gain * 1k');
     expect(slice(value.expr.right)).toBe('offset');
-    expect(value.expr.right.range.start).toMatchObject({ line: 1, column: 28 });
+    expect(result.lines.position(value.expr.right.span.start)).toMatchObject({ line: 1, column: 28 });
   });
 
   test('an expression across a + continuation line', () => {
     const text = 'title\n.param total = {gain *\n+ 1k}\n';
-    const param = parse(text).statements[1]!;
+    const result = parse(text);
+    const param = result.statements[1]!;
     if (param.kind !== 'param') throw new Error('expected .param');
     const value = param.assigns[0]!.value;
     expect(value.kind === 'expression' && value.expr).toMatchObject({ kind: 'binary', op: '*', right: { kind: 'num', value: 1000 } });
-    expect(value.kind === 'expression' && value.expr!.range.end).toMatchObject({ line: 2, column: 4 });
+    expect(value.kind === 'expression' && result.lines.position(value.expr!.span.end)).toMatchObject({ line: 2, column: 4 });
   });
 
   test('a broken expression: one error where it breaks, the field kept with expr undefined', () => {

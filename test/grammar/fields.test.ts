@@ -68,7 +68,7 @@ describe('groups and key=value', () => {
   test('a group\'s range runs from its name to its closing parenthesis', () => {
     const text = 'title\nV1 a 0 SIN(0 1\n+ 1k)\n';
     const v1 = only(text, 'element');
-    expect(covered(text, v1.fields[2]!.range)).toBe('SIN(0 1\n+ 1k)');
+    expect(covered(text, v1.fields[2]!.span)).toBe('SIN(0 1\n+ 1k)');
   });
 
   test('key=value, with white space around = too, and lists such as ic=1,2', () => {
@@ -78,7 +78,7 @@ describe('groups and key=value', () => {
     const [d1, l1] = result.statements.slice(1) as ElementStatement[];
     expect(d1!.fields.map(shape)).toEqual(['a', 'k', 'DMOD', 'area=#2', 'off', 'ic=#0.6']);
     expect(l1!.fields.map(shape)).toEqual(['a', 'b', '#1u', 'ic=(#1 #2)', 'm=#2']);
-    expect(covered(text, d1!.fields[3]!.range)).toBe('area = 2');
+    expect(covered(text, d1!.fields[3]!.span)).toBe('area = 2');
   });
 
   test('.model with and without parentheses (SPICE3 user\'s manual, Quarles 1989)', () => {
@@ -132,7 +132,7 @@ describe('dot commands', () => {
     const inner = outer.body[0]!;
     expect(inner.kind === 'subckt' && inner.body.map((statement) => statement.kind)).toEqual(['element']);
     expect(covered(text, outer.ends!)).toBe('.ends outer');
-    expect(covered(text, outer.range)).toBe(text.slice(text.indexOf('.subckt outer'), text.length - 1));
+    expect(covered(text, outer.span)).toBe(text.slice(text.indexOf('.subckt outer'), text.length - 1));
   });
 
   test('.subckt defaults without params:, and params:r=1k written without a space', () => {
@@ -146,7 +146,7 @@ describe('dot commands', () => {
     expect(param.assigns.map(shape)).toEqual(['a=expr:2*b', 'c=expr:{x+1}', 'd=#1k', 'e=expr:3 * f', 'g=expr:\'a/2\'']);
     const a = param.assigns[0]!.value;
     expect(a.kind === 'expression' && a.expr).toMatchObject({ kind: 'binary', op: '*' });
-    expect(covered(text, param.assigns[3]!.value.range)).toBe('3 * f');
+    expect(covered(text, param.assigns[3]!.value.span)).toBe('3 * f');
   });
 
   test('.param a = x == y keeps == inside the expression', () => {
@@ -171,7 +171,7 @@ describe('dot commands', () => {
     const [quoted, bare] = result.statements.slice(1);
     expect(quoted).toMatchObject({ kind: 'include', path: 'models/leds.lib' });
     expect(bare).toMatchObject({ kind: 'include', path: '../common/diodes.inc' });
-    expect(covered(text, quoted!.kind === 'include' ? quoted!.pathRange : quoted!.range)).toBe('models/leds.lib');
+    expect(covered(text, quoted!.kind === 'include' ? quoted!.pathSpan : quoted!.span)).toBe('models/leds.lib');
   });
 
   test('.lib path section is a reference; .lib section … .endl is a definition', () => {
@@ -200,7 +200,7 @@ describe('dot commands', () => {
     expect(block.branches[0]!.body.map((statement) => statement.kind)).toEqual(['element', 'if']);
     expect(block.branches[0]!.condition?.expr).toMatchObject({ kind: 'binary', op: '==' });
     expect(covered(text, block.endif!)).toBe('.endif');
-    expect(covered(text, block.range)).toBe(text.slice(text.indexOf('.if'), text.length - 1));
+    expect(covered(text, block.span)).toBe(text.slice(text.indexOf('.if'), text.length - 1));
   });
 
   test('.control … .endc is opaque: its lines are not circuit', () => {
@@ -210,7 +210,7 @@ describe('dot commands', () => {
     expect(result.statements.map((statement) => statement.kind)).toEqual(['title', 'element', 'control', 'element']);
     const control = result.statements[2]!;
     expect(control.kind === 'control' && control.text).toBe("let x = 'unclosed\nR5 a b {\n");
-    expect(covered(text, control.range)).toBe(".control\nlet x = 'unclosed\nR5 a b {\n.endc");
+    expect(covered(text, control.span)).toBe(".control\nlet x = 'unclosed\nR5 a b {\n.endc");
   });
 
   test('known commands fold their aliases (ngspice 39 command set)', () => {

@@ -6,7 +6,7 @@
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { parse, type ElementStatement, type ParseResult } from '@pnlint/grammar';
-import { allRanges, allStatements, lineColumn } from './helpers.js';
+import { allSpans, allStatements, lineColumn } from './helpers.js';
 
 const FRAGMENTS = [
   'R1', 'D2', 'XU1', 'V1', 'a', 'out+', '0', '4k7', '1e-3', '-5', '+5', 'DC', 'SIN', 'params:', 'ic', 'm',
@@ -20,13 +20,22 @@ const tokenSoup = fc.array(fc.constantFrom(...FRAGMENTS), { maxLength: 200 }).ma
 
 function checkResult(text: string, result: ParseResult): void {
   for (const diagnostic of result.diagnostics) expect(diagnostic.message).not.toMatch(/internal error/);
-  for (const range of allRanges(result)) {
+  for (const span of allSpans(result)) {
+    expect(span.start).toBeGreaterThanOrEqual(0);
+    expect(span.end).toBeLessThanOrEqual(text.length);
+    expect(span.end).toBeGreaterThanOrEqual(span.start);
+    // The line index agrees with lines and columns counted independently.
+    const range = result.lines.range(span);
     for (const position of [range.start, range.end]) {
+      expect({ line: position.line, column: position.column }).toEqual(lineColumn(text, position.offset));
+    }
+  }
+  for (const diagnostic of result.diagnostics) {
+    for (const position of [diagnostic.range.start, diagnostic.range.end]) {
       expect(position.offset).toBeGreaterThanOrEqual(0);
       expect(position.offset).toBeLessThanOrEqual(text.length);
       expect({ line: position.line, column: position.column }).toEqual(lineColumn(text, position.offset));
     }
-    expect(range.end.offset).toBeGreaterThanOrEqual(range.start.offset);
   }
   // Output bounded by input: never more statements than characters.
   expect(allStatements(result.statements).length).toBeLessThanOrEqual(text.length + 1);
@@ -127,7 +136,7 @@ describe('fuzz', () => {
         elements.forEach((element, index) => {
           const expected = `${lines[index]!.letter}${lines[index]!.number}`;
           expect(element.name.text).toBe(expected);
-          expect(text.slice(element.name.range.start.offset, element.name.range.end.offset)).toBe(expected);
+          expect(text.slice(element.name.span.start, element.name.span.end)).toBe(expected);
           expect(element.fields).toHaveLength(3 + lines[index]!.params.length);
         });
         checkResult(text, result);

@@ -1,6 +1,6 @@
 // Test helpers: where a range lands in the text, computed independently of the parser.
 import { expect } from 'vitest';
-import type { Position, Range, Statement, ParseResult } from '@pnlint/grammar';
+import type { Position, Range, Span, Statement, ParseResult } from '@pnlint/grammar';
 
 let cachedText: string | undefined;
 let cachedStarts: number[] = [];
@@ -27,8 +27,15 @@ export function expectPositionConsistent(text: string, position: Position): void
   expect({ line: position.line, column: position.column }).toEqual(lineColumn(text, position.offset));
 }
 
-/** The text a range covers, after checking that its line/column agree with its offsets. */
-export function covered(text: string, range: Range): string {
+/** The text a span (or a diagnostic's range) covers, after checking that it lies in the text (and that a range's lines and columns agree with its offsets). */
+export function covered(text: string, at: Span | Range): string {
+  if (typeof at.start === 'number' && typeof at.end === 'number') {
+    expect(at.start).toBeGreaterThanOrEqual(0);
+    expect(at.end).toBeGreaterThanOrEqual(at.start);
+    expect(at.end).toBeLessThanOrEqual(text.length);
+    return text.slice(at.start, at.end);
+  }
+  const range = at as Range;
   expectPositionConsistent(text, range.start);
   expectPositionConsistent(text, range.end);
   expect(range.end.offset).toBeGreaterThanOrEqual(range.start.offset);
@@ -49,9 +56,9 @@ export function allStatements(statements: Statement[]): Statement[] {
   return all;
 }
 
-/** Every range object reachable from the result. */
-export function allRanges(result: ParseResult): Range[] {
-  const ranges: Range[] = [];
+/** Every span reachable from the statements of a result. */
+export function allSpans(result: ParseResult): Span[] {
+  const spans: Span[] = [];
   const visit = (value: unknown): void => {
     if (!value || typeof value !== 'object') return;
     if (Array.isArray(value)) {
@@ -59,17 +66,12 @@ export function allRanges(result: ParseResult): Range[] {
       return;
     }
     const record = value as Record<string, unknown>;
-    if (isRange(record)) {
-      ranges.push(record as unknown as Range);
+    if (typeof record.start === 'number' && typeof record.end === 'number') {
+      spans.push(record as unknown as Span);
       return;
     }
     for (const key of Object.keys(record)) visit(record[key]);
   };
-  visit(result);
-  return ranges;
-}
-
-function isRange(value: Record<string, unknown>): boolean {
-  const start = value.start as Record<string, unknown> | undefined;
-  return !!start && typeof start === 'object' && typeof start.offset === 'number' && typeof value.end === 'object';
+  visit(result.statements);
+  return spans;
 }

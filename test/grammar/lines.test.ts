@@ -18,7 +18,7 @@ describe('title line', () => {
     const result = parse(text);
     expect(result.diagnostics).toEqual([]);
     expect(result.statements[0]).toMatchObject({ kind: 'title', text: 'R1 a b {unclosed ( 1k' });
-    expect(covered(text, result.statements[0]!.range)).toBe('R1 a b {unclosed ( 1k');
+    expect(covered(text, result.statements[0]!.span)).toBe('R1 a b {unclosed ( 1k');
     expect(element(result.statements).name.text).toBe('R2');
   });
 
@@ -30,7 +30,7 @@ describe('title line', () => {
   test('an empty first line is an empty title, not a statement', () => {
     const result = parse('\nR1 a b 1k\n');
     expect(result.statements.map((statement) => statement.kind)).toEqual(['element']);
-    expect(result.statements[0]!.range.start.line).toBe(1);
+    expect(result.lines.lineOf(result.statements[0]!.span.start)).toBe(1);
   });
 });
 
@@ -40,8 +40,8 @@ describe('comments', () => {
     const result = parse(text);
     const comments = result.statements.filter((statement) => statement.kind === 'comment');
     expect(comments).toMatchObject([{ text: 'pnlint: rating DRED kind=led if=20m' }, { text: ' indented note' }]);
-    expect(covered(text, comments[0]!.range)).toBe('*pnlint: rating DRED kind=led if=20m');
-    expect(covered(text, comments[1]!.range)).toBe('* indented note');
+    expect(covered(text, comments[0]!.span)).toBe('*pnlint: rating DRED kind=led if=20m');
+    expect(covered(text, comments[1]!.span)).toBe('* indented note');
   });
 
   test('a ; comment ends a line anywhere, even against a word', () => {
@@ -49,9 +49,9 @@ describe('comments', () => {
     const r1 = element(parse(text).statements);
     expect(r1.fields.map((field) => field.kind === 'number' && field.text)).toEqual([false, false, '1k']);
     expect(r1.comment?.text).toBe('pnlint: ignore overdissipation');
-    expect(covered(text, r1.comment!.range)).toBe(';pnlint: ignore overdissipation');
+    expect(covered(text, r1.comment!.span)).toBe(';pnlint: ignore overdissipation');
     // The statement's range takes its inline comment in.
-    expect(covered(text, r1.range)).toBe('R1 a b 1k;pnlint: ignore overdissipation');
+    expect(covered(text, r1.span)).toBe('R1 a b 1k;pnlint: ignore overdissipation');
   });
 
   test('$ starts a comment after white space, and is part of a word otherwise (ngspice 39)', () => {
@@ -88,14 +88,14 @@ describe('continuation lines', () => {
     const result = parse(text);
     expect(result.diagnostics).toEqual([]);
     const d1 = element(result.statements);
-    expect(covered(text, d1.range)).toBe('D1 anode\n+ cathode\n  +   DLED');
-    expect(d1.range.start).toMatchObject({ line: 1, column: 0 });
-    expect(d1.range.end).toMatchObject({ line: 3, column: 10 });
+    expect(covered(text, d1.span)).toBe('D1 anode\n+ cathode\n  +   DLED');
+    expect(result.lines.position(d1.span.start)).toMatchObject({ line: 1, column: 0 });
+    expect(result.lines.position(d1.span.end)).toMatchObject({ line: 3, column: 10 });
     const [anode, cathode, model] = d1.fields;
-    expect(anode!.range.start).toMatchObject({ line: 1, column: 3 });
-    expect(cathode!.range.start).toMatchObject({ line: 2, column: 2 });
-    expect(model!.range.start).toMatchObject({ line: 3, column: 6 });
-    expect(covered(text, model!.range)).toBe('DLED');
+    expect(result.lines.position(anode!.span.start)).toMatchObject({ line: 1, column: 3 });
+    expect(result.lines.position(cathode!.span.start)).toMatchObject({ line: 2, column: 2 });
+    expect(result.lines.position(model!.span.start)).toMatchObject({ line: 3, column: 6 });
+    expect(covered(text, model!.span)).toBe('DLED');
   });
 
   test('+5 in the middle of a line is a value, not a continuation', () => {
@@ -119,8 +119,8 @@ describe('line ends, tabs and case', () => {
     const result = parse(text);
     expect(result.diagnostics).toEqual([]);
     const r1 = element(result.statements);
-    expect(covered(text, r1.range)).toBe('R1\ta\tb\t1k\r\n+ tc=0.001');
-    expect(r1.fields[1]!.range.start).toMatchObject({ line: 1, column: 5 });
+    expect(covered(text, r1.span)).toBe('R1\ta\tb\t1k\r\n+ tc=0.001');
+    expect(result.lines.position(r1.fields[1]!.span.start)).toMatchObject({ line: 1, column: 5 });
     expect(result.statements.at(-1)!.kind).toBe('end');
   });
 
@@ -128,7 +128,7 @@ describe('line ends, tabs and case', () => {
     const text = 'title\rR1 a b 1k\rR2 b 0 2k';
     const result = parse(text);
     expect(result.statements.filter((statement) => statement.kind === 'element')).toHaveLength(2);
-    expect(element(result.statements, 1).range.start).toMatchObject({ line: 2, column: 0 });
+    expect(result.lines.position(element(result.statements, 1).span.start)).toMatchObject({ line: 2, column: 0 });
   });
 
   test('commands and keywords in any case', () => {
@@ -148,8 +148,8 @@ describe('line ends, tabs and case', () => {
     const text = 'title\n* \u{1F50B} cell\nR1 a b 1k ; 10 \u{1F50B}\nR2 b 0 1k\n';
     const result = parse(text);
     const r2 = element(result.statements, 1);
-    expect(r2.range.start).toMatchObject({ line: 3, column: 0 });
-    expect(covered(text, element(result.statements).comment!.range)).toBe('; 10 \u{1F50B}');
+    expect(result.lines.position(r2.span.start)).toMatchObject({ line: 3, column: 0 });
+    expect(covered(text, element(result.statements).comment!.span)).toBe('; 10 \u{1F50B}');
   });
 });
 
@@ -168,7 +168,7 @@ describe('a file larger than one reading chunk', () => {
       expect(count('control')).toBe(3000);
       expect(count('comment')).toBe(3000);
       const last = result.statements.at(-1)!;
-      expect(covered(text, last.range)).toBe('D1 a 0 DRED');
+      expect(covered(text, last.span)).toBe('D1 a 0 DRED');
     }
   });
 });

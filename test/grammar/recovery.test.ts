@@ -144,7 +144,7 @@ describe('unclosed parentheses in expressions', () => {
 
   test('a byte-order mark before the title is not part of it', () => {
     const result = parse('\uFEFFboard title\nR1 a 0 1k\n');
-    expect(result.statements[0]).toMatchObject({ kind: 'title', text: 'board title', range: { start: { offset: 1, column: 1 } } });
+    expect(result.statements[0]).toMatchObject({ kind: 'title', text: 'board title', span: { start: 1 } });
   });
 });
 

@@ -3,22 +3,21 @@
 // expression (`.param x={…}` printed through a voltage source), otherwise
 // mathematical identities.
 import { describe, expect, test } from 'vitest';
-import type { Expr, Range } from '@pnlint/grammar';
+import { LineIndex, type Expr, type Span } from '@pnlint/grammar';
 import { DiagnosticSink, evaluateExpression, ParameterEvaluation, ParameterScope } from '../../server/src/netlist/index.js';
 
-const at = (column: number, width = 1): Range => ({
-  start: { line: 0, column, offset: column },
-  end: { line: 0, column: column + width, offset: column + width },
-});
+const at = (column: number, width = 1): Span => ({ start: column, end: column + width });
 const R = at(0);
-const num = (value: number, text = String(value), range = R): Expr => ({ kind: 'num', value, text, range });
-const id = (name: string, range = R): Expr => ({ kind: 'ident', name, range });
-const bin = (op: Extract<Expr, { kind: 'binary' }>['op'], left: Expr, right: Expr, range = R): Expr => ({ kind: 'binary', op, left, right, range });
-const call = (name: string, ...args: Expr[]): Expr => ({ kind: 'call', name, args, range: R });
-const neg = (operand: Expr): Expr => ({ kind: 'unary', op: '-', operand, range: R });
+const num = (value: number, text = String(value), span = R): Expr => ({ kind: 'num', value, text, span });
+const id = (name: string, span = R): Expr => ({ kind: 'ident', name, span });
+const bin = (op: Extract<Expr, { kind: 'binary' }>['op'], left: Expr, right: Expr, span = R): Expr => ({ kind: 'binary', op, left, right, span });
+const call = (name: string, ...args: Expr[]): Expr => ({ kind: 'call', name, args, span: R });
+const neg = (operand: Expr): Expr => ({ kind: 'unary', op: '-', operand, span: R });
 
 function setup() {
-  const sink = new DiagnosticSink();
+  // The trees stand on one line of 80 columns: a span's offsets are its columns.
+  const line = new LineIndex(' '.repeat(80));
+  const sink = new DiagnosticSink(() => line);
   const numbers: string[] = [];
   const scope = new ParameterScope(undefined, new ParameterEvaluation(sink, (_uri, text) => numbers.push(text)));
   const evaluate = (expr: Expr, within = scope) => evaluateExpression(expr, { scope: within, uri: 'test.cir', sink });
@@ -85,18 +84,18 @@ describe('functions and operators', () => {
     const { evaluate, sink } = setup();
     // The untaken side divides by zero: no diagnostic may come from it.
     expect(evaluate(call('if', num(1), num(7), bin('/', num(1), num(0))))).toBe(7);
-    expect(evaluate({ kind: 'ternary', condition: num(0), whenTrue: bin('/', num(1), num(0)), whenFalse: num(9), range: R })).toBe(9);
+    expect(evaluate({ kind: 'ternary', condition: num(0), whenTrue: bin('/', num(1), num(0)), whenFalse: num(9), span: R })).toBe(9);
     expect(sink.diagnostics).toEqual([]);
   });
 });
 
-describe('failures are diagnostics at their range, never exceptions', () => {
+describe('failures are diagnostics at their span, never exceptions', () => {
   test('an unknown name is reported at its own range', () => {
     const { evaluate, sink } = setup();
     expect(evaluate(bin('+', num(1), id('rload', at(4, 5)), at(0, 9)))).toBeUndefined();
     expect(sink.diagnostics).toHaveLength(1);
     expect(sink.diagnostics[0]!.message).toMatch(/unknown parameter rload/);
-    expect(sink.diagnostics[0]!.location.range).toEqual(at(4, 5));
+    expect(sink.diagnostics[0]!.location.range).toEqual({ start: { line: 0, column: 4, offset: 4 }, end: { line: 0, column: 9, offset: 9 } });
   });
 
   test('division by zero, a wrong argument count and an unknown function', () => {
@@ -132,22 +131,22 @@ describe('parameters and user functions', () => {
   test('parameters evaluate in dependency order, whatever order they are written in', () => {
     const { scope, evaluate } = setup();
     // .param total={half*2} half={base/2} base=10
-    scope.define('total', { kind: 'expression', text: '{half*2}', expr: bin('*', id('half'), num(2)), range: R }, 'test.cir', R);
-    scope.define('half', { kind: 'expression', text: '{base/2}', expr: bin('/', id('base'), num(2)), range: R }, 'test.cir', R);
-    scope.define('base', { kind: 'number', text: '10', value: 10, range: R }, 'test.cir', R);
+    scope.define('total', { kind: 'expression', text: '{half*2}', expr: bin('*', id('half'), num(2)), span: R }, 'test.cir', R);
+    scope.define('half', { kind: 'expression', text: '{base/2}', expr: bin('/', id('base'), num(2)), span: R }, 'test.cir', R);
+    scope.define('base', { kind: 'number', text: '10', value: 10, span: R }, 'test.cir', R);
     expect(evaluate(id('total'))).toBe(10);
   });
 
   test('a cycle is reported once, at the .param where it closes, and names the chain', () => {
     const { scope, sink, evaluate } = setup();
     const aRange = at(7, 5);
-    scope.define('a', { kind: 'expression', text: '{b+1}', expr: bin('+', id('b'), num(1)), range: R }, 'test.cir', aRange);
-    scope.define('b', { kind: 'expression', text: '{a*2}', expr: bin('*', id('a'), num(2)), range: R }, 'test.cir', at(20, 5));
+    scope.define('a', { kind: 'expression', text: '{b+1}', expr: bin('+', id('b'), num(1)), span: R }, 'test.cir', aRange);
+    scope.define('b', { kind: 'expression', text: '{a*2}', expr: bin('*', id('a'), num(2)), span: R }, 'test.cir', at(20, 5));
     expect(evaluate(id('a'))).toBeUndefined();
     expect(evaluate(id('b'))).toBeUndefined();
     expect(sink.diagnostics).toHaveLength(1);
     expect(sink.diagnostics[0]!.message).toBe('parameter a depends on itself: a → b → a');
-    expect(sink.diagnostics[0]!.location.range).toEqual(aRange);
+    expect(sink.diagnostics[0]!.location.range).toEqual({ start: { line: 0, column: 7, offset: 7 }, end: { line: 0, column: 12, offset: 12 } });
   });
 
   test('an inner scope sees its own values first, then its parent', () => {
@@ -181,7 +180,7 @@ describe('parameters and user functions', () => {
 
   test('number literals are handed to the ambiguity check', () => {
     const { scope, numbers } = setup();
-    scope.evaluateField({ kind: 'expression', text: '{4k7*2}', expr: bin('*', num(4000, '4k7'), num(2)), range: R }, 'test.cir');
+    scope.evaluateField({ kind: 'expression', text: '{4k7*2}', expr: bin('*', num(4000, '4k7'), num(2)), span: R }, 'test.cir');
     expect(numbers).toEqual(['4k7', '2']);
   });
 });

@@ -18,7 +18,7 @@ export function flipDiodeCandidate(session: FixSession, request: FlipRequest, fi
   const nodes = located && nodeFields(located.statement, 2);
   if (!located || !nodes) return undefined;
   const [anode, cathode] = nodes as [(typeof nodes)[0], (typeof nodes)[0]];
-  const edits = [replaceEdit(located.uri, anode.range, cathode.text), replaceEdit(located.uri, cathode.range, anode.text)];
+  const edits = [replaceEdit(located, anode.span, cathode.text), replaceEdit(located, cathode.span, anode.text)];
   return {
     element: diode,
     target: finding,

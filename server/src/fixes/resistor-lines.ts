@@ -7,7 +7,7 @@ import type { Diode, Resistor } from '../netlist/circuit.js';
 import { formatSpiceNumber } from '../netlist/index.js';
 import type { TextEdit } from '../findings.js';
 import { instancePrefix, leafName } from './names.js';
-import { linesAfter, nodeFields, replaceEdit } from './source-text.js';
+import { linesAfter, nodeFields, replaceEdit, type LocatedStatement } from './source-text.js';
 import type { FixSession } from './verify.js';
 
 export interface InsertedResistor {
@@ -28,13 +28,13 @@ export function insertSeriesResistor(session: FixSession, diode: Diode, value: n
   const resistorName = names.fresh('element', `R_${leaf}`);
   const nodeName = names.fresh('node', `${leaf}_anode`);
   return {
-    edits: [replaceEdit(located.uri, anode.range, nodeName), linesAfter(located, [`${resistorName} ${anode.text} ${nodeName} ${formatSpiceNumber(value)}`])],
+    edits: [replaceEdit(located, anode.span, nodeName), linesAfter(located, [`${resistorName} ${anode.text} ${nodeName} ${formatSpiceNumber(value)}`])],
     name: instancePrefix(diode.name) + resistorName,
   };
 }
 
 /** The field holding a resistor's value, and the factor between the written value and the resistance (`m=` divides it). */
-function valueField(session: FixSession, resistor: Resistor): { uri: string; field: Field; writtenPerOhm: number } | undefined {
+function valueField(session: FixSession, resistor: Resistor): { located: LocatedStatement; field: Field; writtenPerOhm: number } | undefined {
   const located = session.files.statementOf(resistor);
   if (!located) return undefined;
   const fields = located.statement.fields;
@@ -49,9 +49,9 @@ function valueField(session: FixSession, resistor: Resistor): { uri: string; fie
   // A word naming a resistor model is not the value (`R1 a b RMOD 1k`).
   const isModel = (field: Field) => field.kind === 'word' && session.circuit.models.has(field.text.toLowerCase());
   const positionalValue = positional.slice(2).find((field) => field.kind !== 'group' && !isModel(field));
-  if (positionalValue) return { uri: located.uri, field: positionalValue, writtenPerOhm };
+  if (positionalValue) return { located, field: positionalValue, writtenPerOhm };
   const keyed = assigns.find((field) => ['r', 'resistance'].includes(field.key.text.toLowerCase()));
-  if (keyed) return { uri: located.uri, field: keyed.value, writtenPerOhm };
+  if (keyed) return { located, field: keyed.value, writtenPerOhm };
   return undefined; // the value comes from a model: changing it would change every resistor of that model
 }
 
@@ -59,5 +59,5 @@ function valueField(session: FixSession, resistor: Resistor): { uri: string; fie
 export function changeResistorValue(session: FixSession, resistor: Resistor, value: number): TextEdit[] | undefined {
   const found = valueField(session, resistor);
   if (!found) return undefined;
-  return [replaceEdit(found.uri, found.field.range, formatSpiceNumber(value * found.writtenPerOhm))];
+  return [replaceEdit(found.located, found.field.span, formatSpiceNumber(value * found.writtenPerOhm))];
 }

@@ -184,7 +184,9 @@ function elementLineAt(context: FeatureContext, document: TextDocument, isAnalys
   const syntax = isAnalysed ? context.syntax(document) : context.includedSyntax.get(document.uri, document.getText());
   let found: number | undefined;
   forEachStatement(syntax.statements, (statement) => {
-    if (found === undefined && statement.kind === 'element' && statement.range.start.line <= line && statement.range.end.line >= line) found = statement.range.start.line;
+    if (found !== undefined || statement.kind !== 'element') return;
+    const first = syntax.lines.lineOf(statement.span.start);
+    if (first <= line && syntax.lines.lineOf(statement.span.end) >= line) found = first;
   });
   return found;
 }

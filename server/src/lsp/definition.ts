@@ -2,7 +2,7 @@
 // expression, and of the file an `.include` or `.lib` line names.
 import type { DefinitionParams, Location } from 'vscode-languageserver';
 import type { FeatureContext } from './context.js';
-import { rangeContains, toLspRange } from './positions.js';
+import { spanContains, toLspRange } from './positions.js';
 import { findTarget, instanceSubcircuit, modelName, parameterName, resolveName, subcircuitName, type Definition } from './syntax.js';
 
 const START_OF_FILE = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
@@ -14,11 +14,13 @@ function locationOf(definition: Definition<unknown> | undefined): Location[] | n
 export function definition(context: FeatureContext, params: DefinitionParams): Location[] | null {
   const document = context.documents.get(params.textDocument.uri);
   if (!document) return null;
-  const target = findTarget(context.syntax(document), params.position);
+  const syntax = context.syntax(document);
+  const target = findTarget(syntax, params.position);
   if (!target) return null;
   const { statement, field } = target;
+  const offset = syntax.lines.offsetAt(params.position.line, params.position.character);
 
-  if ((statement.kind === 'include' || statement.kind === 'libReference') && rangeContains(statement.pathRange, params.position)) {
+  if ((statement.kind === 'include' || statement.kind === 'libReference') && spanContains(statement.pathSpan, offset)) {
     const reader = context.workspace.createReader((message) => context.log(message));
     const uri = reader.resolve(document.uri, statement.path);
     return reader.read(uri) === undefined ? null : [{ uri, range: START_OF_FILE }];

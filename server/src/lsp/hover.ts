@@ -18,7 +18,7 @@ import { describeRule } from '../rule-ids.js';
 import { formatPercent, formatQuantity } from '../units.js';
 import type { FeatureContext } from './context.js';
 import { describeModelParameter, deviceOfModelType } from './model-parameters.js';
-import { toLspRange } from './positions.js';
+import { lspRangeOf } from './positions.js';
 import {
   fieldText,
   findTarget,
@@ -58,8 +58,8 @@ export function hover(context: FeatureContext, params: HoverParams): Hover | nul
   if (!target) return null;
   const markdown = describeTarget(context, document, target, () => context.index(document));
   if (!markdown) return null;
-  const range = target.identifier?.range ?? target.field?.range;
-  return { contents: { kind: MarkupKind.Markdown, value: markdown }, ...(range ? { range: toLspRange(range) } : {}) };
+  const span = target.identifier?.span ?? target.field?.span;
+  return { contents: { kind: MarkupKind.Markdown, value: markdown }, ...(span ? { range: lspRangeOf(syntax.lines, span) } : {}) };
 }
 
 function describeTarget(context: FeatureContext, document: TextDocument, target: SyntaxTarget, index: () => SyntaxIndex): string | undefined {
@@ -196,7 +196,7 @@ function describeElement(context: FeatureContext, document: TextDocument, elemen
     lines.push(`**${element.name.text}** — ${kind}${nodes.length > 0 ? `, nodes ${nodes.join(' ')}` : ''}`);
   }
   if (element.letter === 'D') {
-    const reports = context.diodeReportsAt(document, element.range.start.line);
+    const reports = context.diodeReportsAt(document, context.syntax(document).lines.lineOf(element.span.start));
     for (const report of reports) lines.push('', describeDiodeReport(report, reports.length > 1));
     if (reports.length > 0) {
       const caution = context.current(document)?.findings.find((finding) => finding.rule === HAZARD_RULE);

@@ -1,6 +1,6 @@
-// Conversions between the grammar's ranges (0-based line, UTF-16 column, offset)
-// and the protocol's, and the few range tests the features share.
-import type { Range } from '@pnlint/grammar';
+// Conversions between the grammar's spans and ranges (0-based line, UTF-16 column,
+// offset) and the protocol's, and the few range tests the features share.
+import type { LineIndex, Range, Span } from '@pnlint/grammar';
 import type { Position as LspPosition, Range as LspRange } from 'vscode-languageserver';
 
 export function toLspRange(range: Range): LspRange {
@@ -10,13 +10,14 @@ export function toLspRange(range: Range): LspRange {
   };
 }
 
-function compare(line: number, column: number, position: LspPosition): number {
-  return line !== position.line ? line - position.line : column - position.character;
+/** The protocol range of a span of the text that `lines` indexes. */
+export function lspRangeOf(lines: LineIndex, span: Span): LspRange {
+  return toLspRange(lines.range(span));
 }
 
-/** True when `position` is inside `range` or touches its end (a cursor just after a word still points at it). */
-export function rangeContains(range: Range, position: LspPosition): boolean {
-  return compare(range.start.line, range.start.column, position) <= 0 && compare(range.end.line, range.end.column, position) >= 0;
+/** True when `offset` is inside `span` or touches its end (a cursor just after a word still points at it). */
+export function spanContains(span: Span, offset: number): boolean {
+  return span.start <= offset && offset <= span.end;
 }
 
 export function rangesOverlap(a: LspRange, b: LspRange): boolean {

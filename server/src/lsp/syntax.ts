@@ -11,13 +11,15 @@ import {
   type LibReferenceStatement,
   type ModelStatement,
   type ParseResult,
+  type LineIndex,
   type Range,
+  type Span,
   type Statement,
   type SubcktStatement,
 } from '@pnlint/grammar';
 import type { Position as LspPosition } from 'vscode-languageserver';
 import type { FileReader } from '../netlist/circuit.js';
-import { rangeContains } from './positions.js';
+import { spanContains } from './positions.js';
 
 /** The subcircuits around a statement, outermost first. */
 export type Scope = readonly SubcktStatement[];
@@ -51,29 +53,29 @@ export interface SyntaxTarget {
   /** The field's parent when the field is the key or value of `key=value`. */
   assign?: AssignField;
   /** An identifier (or function name) inside an expression under the cursor. */
-  identifier?: { name: string; range: Range };
+  identifier?: { name: string; span: Span };
 }
 
-function fieldAt(field: Field, position: LspPosition, parent?: AssignField): { field: Field; assign?: AssignField } | undefined {
-  if (!rangeContains(field.range, position)) return undefined;
+function fieldAt(field: Field, offset: number, parent?: AssignField): { field: Field; assign?: AssignField } | undefined {
+  if (!spanContains(field.span, offset)) return undefined;
   if (field.kind === 'assign') {
-    return fieldAt(field.key, position, field) ?? fieldAt(field.value, position, field) ?? { field, assign: parent };
+    return fieldAt(field.key, offset, field) ?? fieldAt(field.value, offset, field) ?? { field, assign: parent };
   }
   if (field.kind === 'group') {
-    if (field.name && rangeContains(field.name.range, position)) return { field: field.name };
+    if (field.name && spanContains(field.name.span, offset)) return { field: field.name };
     for (const item of field.items) {
-      const inner = fieldAt(item, position);
+      const inner = fieldAt(item, offset);
       if (inner) return inner;
     }
   }
   return { field, assign: parent };
 }
 
-function identifierAt(expr: Expr | undefined, position: LspPosition): { name: string; range: Range } | undefined {
-  if (!expr || !rangeContains(expr.range, position)) return undefined;
+function identifierAt(expr: Expr | undefined, position: number): { name: string; span: Span } | undefined {
+  if (!expr || !spanContains(expr.span, position)) return undefined;
   switch (expr.kind) {
     case 'ident':
-      return { name: expr.name, range: expr.range };
+      return { name: expr.name, span: expr.span };
     case 'unary':
       return identifierAt(expr.operand, position);
     case 'binary':
@@ -119,26 +121,27 @@ function headerFields(statement: Statement): Field[] {
   }
 }
 
-function isHeaderAt(statement: Statement, position: LspPosition): boolean {
+function isHeaderAt(statement: Statement, lines: LineIndex, position: LspPosition, offset: number): boolean {
   // A block's own line(s) only: its body is searched separately.
   if (statement.kind === 'subckt' || statement.kind === 'libSection' || statement.kind === 'if') {
-    return statement.range.start.line === position.line;
+    return lines.lineOf(statement.span.start) === position.line;
   }
-  return rangeContains(statement.range, position);
+  return spanContains(statement.span, offset);
 }
 
 export function findTarget(syntax: ParseResult, position: LspPosition): SyntaxTarget | undefined {
+  const offset = syntax.lines.offsetAt(position.line, position.character);
   let found: SyntaxTarget | undefined;
   forEachStatement(syntax.statements, (statement, scope) => {
-    if (found || !isHeaderAt(statement, position)) return;
+    if (found || !isHeaderAt(statement, syntax.lines, position, offset)) return;
     const target: SyntaxTarget = { statement, scope };
     for (const field of headerFields(statement)) {
-      const inner = fieldAt(field, position);
+      const inner = fieldAt(field, offset);
       if (!inner) continue;
       target.field = inner.field;
       if (inner.assign) target.assign = inner.assign;
       if (inner.field.kind === 'expression') {
-        const identifier = identifierAt(inner.field.expr, position);
+        const identifier = identifierAt(inner.field.expr, offset);
         if (identifier) target.identifier = identifier;
       }
       break;
@@ -164,32 +167,33 @@ export interface SyntaxIndex {
   /** `.param` assignments and subcircuit parameter defaults (`params:`). */
   parameters: Definition<AssignField>[];
   elements: Definition<ElementStatement>[];
-  includes: { uri: string; statement: IncludeStatement | LibReferenceStatement; target: string }[];
+  includes: { uri: string; lines: LineIndex; statement: IncludeStatement | LibReferenceStatement; target: string }[];
 }
 
 function emptyIndex(): SyntaxIndex {
   return { models: [], subcircuits: [], parameters: [], elements: [], includes: [] };
 }
 
-function indexStatements(index: SyntaxIndex, uri: string, statements: readonly Statement[], files: FileReader | undefined): void {
+function indexStatements(index: SyntaxIndex, uri: string, lines: LineIndex, statements: readonly Statement[], files: FileReader | undefined): void {
+  const at = (span: Span): Range => lines.range(span);
   forEachStatement(statements, (statement, scope) => {
     switch (statement.kind) {
       case 'model':
-        index.models.push({ uri, node: statement, nameRange: statement.name.range, scope });
+        index.models.push({ uri, node: statement, nameRange: at(statement.name.span), scope });
         break;
       case 'subckt':
-        index.subcircuits.push({ uri, node: statement, nameRange: statement.name.range, scope });
-        for (const param of statement.params) index.parameters.push({ uri, node: param, nameRange: param.key.range, scope: [...scope, statement] });
+        index.subcircuits.push({ uri, node: statement, nameRange: at(statement.name.span), scope });
+        for (const param of statement.params) index.parameters.push({ uri, node: param, nameRange: at(param.key.span), scope: [...scope, statement] });
         break;
       case 'param':
-        for (const assign of statement.assigns) index.parameters.push({ uri, node: assign, nameRange: assign.key.range, scope });
+        for (const assign of statement.assigns) index.parameters.push({ uri, node: assign, nameRange: at(assign.key.span), scope });
         break;
       case 'element':
-        index.elements.push({ uri, node: statement, nameRange: statement.name.range, scope });
+        index.elements.push({ uri, node: statement, nameRange: at(statement.name.span), scope });
         break;
       case 'include':
       case 'libReference':
-        if (files) index.includes.push({ uri, statement, target: files.resolve(uri, statement.path) });
+        if (files) index.includes.push({ uri, lines, statement, target: files.resolve(uri, statement.path) });
         break;
       default:
         break;
@@ -225,11 +229,11 @@ export class IncludedSyntaxCache {
 export function buildIndex(uri: string, syntax: ParseResult, files: FileReader, cache: IncludedSyntaxCache): SyntaxIndex {
   const index = emptyIndex();
   const visited = new Set<string>([uri]);
-  const queue: { uri: string; statements: readonly Statement[]; depth: number }[] = [{ uri, statements: syntax.statements, depth: 0 }];
+  const queue: { uri: string; lines: LineIndex; statements: readonly Statement[]; depth: number }[] = [{ uri, lines: syntax.lines, statements: syntax.statements, depth: 0 }];
   while (queue.length > 0) {
     const next = queue.shift()!;
     const before = index.includes.length;
-    indexStatements(index, next.uri, next.statements, files);
+    indexStatements(index, next.uri, next.lines, next.statements, files);
     if (next.depth >= INCLUDE_DEPTH_LIMIT) continue;
     for (const include of index.includes.slice(before)) {
       const key = include.statement.kind === 'libReference' ? `${include.target}#${include.statement.section.text.toLowerCase()}` : include.target;
@@ -243,7 +247,7 @@ export function buildIndex(uri: string, syntax: ParseResult, files: FileReader, 
         const section = include.statement.section.text.toLowerCase();
         statements = included.statements.filter((s) => s.kind === 'libSection' && s.name.text.toLowerCase() === section);
       }
-      queue.push({ uri: include.target, statements, depth: next.depth + 1 });
+      queue.push({ uri: include.target, lines: included.lines, statements, depth: next.depth + 1 });
     }
   }
   return index;

@@ -5,6 +5,7 @@
 // keeps the line it came from. Bad input never throws: it becomes a diagnostic.
 import {
   isAmbiguousNumber,
+  LineIndex,
   parse,
   readMarkingCode,
   readSpiceNumber,
@@ -13,11 +14,12 @@ import {
   type LibReferenceStatement,
   type ParseResult,
   type Range,
+  type Span,
   type Statement,
   type SubcktStatement,
 } from '@pnlint/grammar';
 import { GROUND, type Circuit, type DirectiveComment, type Element, type FileReader, type Model, type SourceLocation } from './circuit.js';
-import { DiagnosticSink } from './diagnostics.js';
+import { DiagnosticSink, FILE_START } from './diagnostics.js';
 import { readElement, type ElementContext, type NodeField } from './elements.js';
 import { formatSpiceNumber, unitOfElement } from './format.js';
 import { formatQuantity } from '../units.js';
@@ -102,7 +104,7 @@ export function elaborate(uri: string, text: string, reader: FileReader, options
 }
 
 class Elaborator {
-  private readonly sink = new DiagnosticSink();
+  private readonly sink = new DiagnosticSink((uri) => this.parsed.get(uri)?.lines);
   private readonly files = new Map<string, string>();
   private readonly parsed = new Map<string, ParseResult | undefined>();
   private readonly includeStack: string[] = [];
@@ -125,8 +127,8 @@ class Elaborator {
     private readonly reader: FileReader,
     private readonly settings: ElaborateOptions,
   ) {
-    this.evaluation = new ParameterEvaluation(this.sink, (fileUri, numberText, range, letter, inExpression) =>
-      this.checkAmbiguous(fileUri, numberText, range, letter, inExpression),
+    this.evaluation = new ParameterEvaluation(this.sink, (fileUri, numberText, span, letter, inExpression) =>
+      this.checkAmbiguous(fileUri, numberText, span, letter, inExpression),
     );
   }
 
@@ -146,8 +148,7 @@ class Elaborator {
       this.resolveReferences();
     } catch (error) {
       // A bug of ours must not take the editor down: say so where the user can see it.
-      const at = { start: { line: 0, column: 0, offset: 0 }, end: { line: 0, column: 0, offset: 0 } };
-      this.sink.error(this.uri, at, `internal error while reading the netlist: ${error instanceof Error ? error.message : String(error)}`);
+      this.sink.error(this.uri, FILE_START, `internal error while reading the netlist: ${error instanceof Error ? error.message : String(error)}`);
     }
     return {
       uri: this.uri,
@@ -185,12 +186,11 @@ class Elaborator {
     try {
       result = parse(text, { isInclude });
     } catch (error) {
-      const at = { start: { line: 0, column: 0, offset: 0 }, end: { line: 0, column: 0, offset: 0 } };
-      this.sink.report('error', 'syntax', uri, at, `the parser failed on this file: ${error instanceof Error ? error.message : String(error)}`);
-      result = { statements: [], diagnostics: [] };
+      result = { statements: [], diagnostics: [], lines: new LineIndex(text) };
+      this.sink.report('error', 'syntax', uri, FILE_START, `the parser failed on this file: ${error instanceof Error ? error.message : String(error)}`);
     }
-    for (const d of result.diagnostics) this.sink.report(d.severity, d.code, uri, d.range, d.message);
     this.parsed.set(uri, result);
+    for (const d of result.diagnostics) this.sink.add({ severity: d.severity, code: d.code, message: d.message, location: { uri, range: d.range } });
     return result;
   }
 
@@ -217,19 +217,19 @@ class Elaborator {
     try {
       target = this.reader.resolve(fromUri, statement.path);
     } catch {
-      this.sink.error(fromUri, statement.pathRange, `cannot resolve the path ${statement.path}`);
+      this.sink.error(fromUri, statement.pathSpan, `cannot resolve the path ${statement.path}`);
       return undefined;
     }
     if (this.settings.restricted && !(this.settings.workspaceRoot && isWithin(target, this.settings.workspaceRoot))) {
       this.sink.error(
         fromUri,
-        statement.pathRange,
+        statement.pathSpan,
         `${statement.path} is not read: it lies outside the workspace, and files outside the workspace are not read in an untrusted (restricted) workspace`,
       );
       return undefined;
     }
     if (this.includeStack.length >= MAXIMUM_INCLUDE_DEPTH) {
-      this.sink.error(fromUri, statement.range, `includes are nested more than ${MAXIMUM_INCLUDE_DEPTH} deep; ${statement.path} is not read`);
+      this.sink.error(fromUri, statement.span, `includes are nested more than ${MAXIMUM_INCLUDE_DEPTH} deep; ${statement.path} is not read`);
       return undefined;
     }
     return target;
@@ -239,7 +239,7 @@ class Elaborator {
     const index = this.includeStack.indexOf(key);
     if (index < 0) return false;
     const chain = [...this.includeStack.slice(index), key].map((k) => k.replace(/^.*[\\/]/, '')).join(' → ');
-    this.sink.error(fromUri, statement.range, `include cycle: ${what} is already being read (${chain})`);
+    this.sink.error(fromUri, statement.span, `include cycle: ${what} is already being read (${chain})`);
     return true;
   }
 
@@ -253,7 +253,7 @@ class Elaborator {
           if (target === undefined || this.cycle(target, statement, uri, statement.path)) break;
           const syntax = this.load(target);
           if (!syntax) {
-            this.sink.error(uri, statement.range, `cannot read ${statement.path} (looked for ${target})`);
+            this.sink.error(uri, statement.span, `cannot read ${statement.path} (looked for ${target})`);
             break;
           }
           this.includeStack.push(target);
@@ -268,7 +268,7 @@ class Elaborator {
           if (target === undefined || this.cycle(key, statement, uri, `section ${section} of ${statement.path}`)) break;
           const syntax = this.load(target);
           if (!syntax) {
-            this.sink.error(uri, statement.range, `cannot read ${statement.path} (looked for ${target})`);
+            this.sink.error(uri, statement.span, `cannot read ${statement.path} (looked for ${target})`);
             break;
           }
           const sections = syntax.statements.filter((s) => s.kind === 'libSection');
@@ -277,7 +277,7 @@ class Elaborator {
             const names = sections.map((s) => s.name.text);
             this.sink.error(
               uri,
-              statement.section.range,
+              statement.section.span,
               `${statement.path} has no section ${section}${names.length ? ` (it has ${names.join(', ')})` : ''}`,
             );
             break;
@@ -310,7 +310,7 @@ class Elaborator {
       if (statement.kind === 'if') hasIf = true;
       else if (statement.kind === 'param') {
         for (const assign of statement.assigns) {
-          frame.params.define(assign.key.text, assign.value, uri, assign.range);
+          frame.params.define(assign.key.text, assign.value, uri, assign.span);
           defined.push(assign.key.text.toLowerCase());
         }
       } else if (statement.kind === 'func' && statement.body?.expr) {
@@ -361,7 +361,7 @@ class Elaborator {
         if (statement.command === 'temp' && this.temperature === undefined) {
           const first = statement.fields[0];
           if (first) this.temperature = frame.params.evaluateField(first, uri);
-          else this.sink.error(uri, statement.range, `.temp needs a temperature in °C`);
+          else this.sink.error(uri, statement.span, `.temp needs a temperature in °C`);
         } else if (statement.command === 'options') {
           for (const field of statement.fields) {
             if (field.kind !== 'assign') continue; // flags such as `noacct` carry no number
@@ -384,8 +384,8 @@ class Elaborator {
         const key = statement.name.text.toLowerCase();
         const first = frame.subcircuits.get(key);
         if (first) {
-          this.sink.warning(uri, statement.name.range, `duplicate subcircuit ${statement.name.text}: SPICE engines keep the first definition`, {
-            related: [{ location: { uri: first.uri, range: first.statement.name.range }, message: 'the first definition' }],
+          this.sink.warning(uri, statement.name.span, `duplicate subcircuit ${statement.name.text}: SPICE engines keep the first definition`, {
+            related: [{ location: this.sink.location(first.uri, first.statement.name.span), message: 'the first definition' }],
           });
           continue;
         }
@@ -396,7 +396,7 @@ class Elaborator {
         if (first) {
           this.sink.warning(
             uri,
-            statement.name.range,
+            statement.name.span,
             `duplicate model ${statement.name.text}: SPICE engines keep the first definition (line ${first.location.range.start.line + 1}), so this one is ignored`,
             { related: [{ location: first.location, message: 'the definition in use' }] },
           );
@@ -468,7 +468,7 @@ class Elaborator {
         if (match) {
           const directive: DirectiveComment = {
             text: statement.text.slice(match[0].length).trim(),
-            location: { uri, range: statement.range },
+            location: this.sink.location(uri, statement.span),
             inline: false,
             nextElement: undefined,
             scope: frame.prefix,
@@ -489,7 +489,7 @@ class Elaborator {
         if (match) {
           this.directives.push({
             text: inline.text.slice(match[0].length).trim(),
-            location: { uri, range: inline.range },
+            location: this.sink.location(uri, inline.span),
             inline: true,
             nextElement: name,
             scope: frame.prefix,
@@ -506,7 +506,7 @@ class Elaborator {
     if (this.elements.length >= MAXIMUM_ELEMENTS) {
       if (!this.budgetReported) {
         this.budgetReported = true;
-        this.sink.error(uri, statement.range, `the circuit has more than ${MAXIMUM_ELEMENTS} elements once its subcircuits are expanded; the rest is not read`);
+        this.sink.error(uri, statement.span, `the circuit has more than ${MAXIMUM_ELEMENTS} elements once its subcircuits are expanded; the rest is not read`);
       }
       return;
     }
@@ -516,9 +516,9 @@ class Elaborator {
       const firstName = (first.statement as ElementStatement).name;
       this.sink.error(
         uri,
-        statement.name.range,
+        statement.name.span,
         `duplicate element name ${statement.name.text}${frame.prefix ? ` in subcircuit instance ${frame.prefix.slice(0, -1)}` : ''}: SPICE engines reject it; this line is not read`,
-        { related: [{ location: { uri: first.uri, range: firstName.range }, message: 'the first element of that name' }] },
+        { related: [{ location: this.sink.location(first.uri, firstName.span), message: 'the first element of that name' }] },
       );
       return;
     }
@@ -529,7 +529,7 @@ class Elaborator {
     }
     const context = this.elementContext(frame);
     context.name = frame.prefix + statement.name.text;
-    context.location = { uri, range: statement.range };
+    context.location = this.sink.location(uri, statement.span);
     context.uri = uri;
     // A line with a syntax error already has its one diagnostic: read what can be read, quietly.
     context.sink = statement.incomplete ? new DiagnosticSink() : this.sink;
@@ -573,17 +573,17 @@ class Elaborator {
       if (field.kind === 'assign') overrides.push(field);
       else if (field.kind === 'word' && /^params:?$/i.test(field.text)) continue;
       else if (field.kind === 'word' || field.kind === 'number') positional.push(field);
-      else this.sink.warning(uri, field.range, `${field.kind === 'expression' ? field.text : 'this list'} is not understood on a subcircuit instance line and is ignored`);
+      else this.sink.warning(uri, field.span, `${field.kind === 'expression' ? field.text : 'this list'} is not understood on a subcircuit instance line and is ignored`);
     }
     const subcircuitName = positional.pop();
     if (!subcircuitName) {
-      this.sink.error(uri, statement.range, `${statement.name.text} names no subcircuit (X1 node… SUBCIRCUIT [params])`);
+      this.sink.error(uri, statement.span, `${statement.name.text} names no subcircuit (X1 node… SUBCIRCUIT [params])`);
       return;
     }
     const definition = this.findSubcircuit(frame, subcircuitName.text);
     if (!definition) {
       const instanceName = frame.prefix + statement.name.text;
-      this.sink.report('warning', 'unknown-model', uri, subcircuitName.range, `subcircuit ${subcircuitName.text} not found: ${instanceName} is not checked`, {
+      this.sink.report('warning', 'unknown-model', uri, subcircuitName.span, `subcircuit ${subcircuitName.text} not found: ${instanceName} is not checked`, {
         element: instanceName,
       });
       // Kept as an element the solver leaves open, so that the checks know which diodes it could move.
@@ -592,7 +592,7 @@ class Elaborator {
         letter: 'X',
         name: instanceName,
         nodes: positional.map((field) => this.node(frame, field.text)),
-        location: { uri, range: statement.range },
+        location: this.sink.location(uri, statement.span),
         instances: frame.instances,
         reason: `subcircuit ${subcircuitName.text} not found`,
         missingDefinition: subcircuitName.text,
@@ -603,9 +603,9 @@ class Elaborator {
     if (positional.length !== ports.length) {
       this.sink.error(
         uri,
-        statement.range,
+        statement.span,
         `${statement.name.text} connects ${positional.length} node${positional.length === 1 ? '' : 's'}, but subcircuit ${definition.statement.name.text} has ${ports.length} port${ports.length === 1 ? '' : 's'} (${ports.map((p) => p.text).join(' ') || 'none'})`,
-        { related: [{ location: { uri: definition.uri, range: definition.statement.name.range }, message: 'the subcircuit' }] },
+        { related: [{ location: this.sink.location(definition.uri, definition.statement.name.span), message: 'the subcircuit' }] },
       );
       return;
     }
@@ -613,11 +613,11 @@ class Elaborator {
     const recursion = frame.active.findIndex((a) => a.definition === definition.statement);
     if (recursion >= 0) {
       const chain = [...frame.active.slice(recursion).map((a) => a.instance), instanceName].join(' → ');
-      this.sink.error(uri, statement.range, `subcircuit ${definition.statement.name.text} contains itself (${chain}); it is not expanded`);
+      this.sink.error(uri, statement.span, `subcircuit ${definition.statement.name.text} contains itself (${chain}); it is not expanded`);
       return;
     }
     if (frame.active.length >= MAXIMUM_SUBCIRCUIT_DEPTH) {
-      this.sink.error(uri, statement.range, `subcircuits are nested more than ${MAXIMUM_SUBCIRCUIT_DEPTH} deep; ${instanceName} is not expanded`);
+      this.sink.error(uri, statement.span, `subcircuits are nested more than ${MAXIMUM_SUBCIRCUIT_DEPTH} deep; ${instanceName} is not expanded`);
       return;
     }
     // Instance values are evaluated where the instance is written; the defaults inside the subcircuit.
@@ -628,14 +628,14 @@ class Elaborator {
       if (!declared.has(key.toLowerCase())) {
         this.sink.warning(
           uri,
-          override.key.range,
+          override.key.span,
           `subcircuit ${definition.statement.name.text} declares no parameter ${key}; it is ignored`,
         );
         continue;
       }
-      scope.setValue(key, frame.params.evaluateField(override.value, uri), uri, override.range, true);
+      scope.setValue(key, frame.params.evaluateField(override.value, uri), uri, override.span, true);
     }
-    for (const parameter of definition.statement.params) scope.define(parameter.key.text, parameter.value, definition.uri, parameter.range);
+    for (const parameter of definition.statement.params) scope.define(parameter.key.text, parameter.value, definition.uri, parameter.span);
     const portMap = new Map<string, string>();
     ports.forEach((port, index) => portMap.set(port.text.toLowerCase(), this.node(frame, positional[index]!.text)));
     const inner: Frame = {
@@ -645,7 +645,7 @@ class Elaborator {
       params: scope,
       subcircuits: new Map(),
       models: new Map(),
-      instances: [...frame.instances, { uri, range: statement.range }],
+      instances: [...frame.instances, this.sink.location(uri, statement.span)],
       active: [...frame.active, { definition: definition.statement, instance: instanceName }],
       elementNames: new Map(),
     };
@@ -685,7 +685,7 @@ class Elaborator {
           continue;
         }
         const written = element.controlSource.slice(prefixOf(element).length);
-        this.sink.error(element.location.uri, element.location.range, `${element.name} is controlled by the current of ${written}, which is not a voltage source in this circuit`);
+        this.sink.errorAt(element.location, `${element.name} is controlled by the current of ${written}, which is not a voltage source in this circuit`);
         this.elements[index] = {
           type: 'unmodeled',
           letter: element.type,
@@ -702,7 +702,7 @@ class Elaborator {
           element.inductors = inductors.map((l) => l!.name);
           continue;
         }
-        this.sink.error(element.location.uri, element.location.range, `${element.name} couples ${missing.join(' and ')}, which ${missing.length === 1 ? 'is not an inductor' : 'are not inductors'} in this circuit`);
+        this.sink.errorAt(element.location, `${element.name} couples ${missing.join(' and ')}, which ${missing.length === 1 ? 'is not an inductor' : 'are not inductors'} in this circuit`);
       }
     }
   }
@@ -714,7 +714,7 @@ class Elaborator {
    * reading the writer may have meant. Inside `{…}` or a `.param` value ngspice 39
    * does not truncate but stops ("Misplaced operator", checked by running it).
    */
-  private checkAmbiguous(uri: string, text: string, range: Range, letter: string, inExpression: boolean): void {
+  private checkAmbiguous(uri: string, text: string, span: Span, letter: string, inExpression: boolean): void {
     // Most values are plain decimals (`10`, `0.5`), which SPICE engines read whole: nothing to look at.
     if (PLAIN_DECIMAL.test(text)) return;
     const reading = readSpiceNumber(text);
@@ -727,7 +727,7 @@ class Elaborator {
       ? `${text} is not a number in an expression or .param value: ngspice stops with "Misplaced operator" (pnlint reads ${engineReading}, ignoring the ${reading.ignored})`
       : `${text} is read as ${engineReading} by SPICE engines (the ${reading.ignored} is ignored)`;
     const suggestions: { title: string; edits: { location: SourceLocation; newText: string }[] }[] = [];
-    const location = { uri, range };
+    const location = this.sink.location(uri, span);
     if (intended) {
       const intendedReading = formatQuantity(intended.value, unit, EXACT_READING_DIGITS);
       message += `; ${intended.convention} it means ${intendedReading}`;
@@ -736,7 +736,7 @@ class Elaborator {
     }
     const engine = formatSpiceNumber(reading.value);
     suggestions.push({ title: `Write ${engine} (${engineReading}, as SPICE engines read it)`, edits: [{ location, newText: engine }] });
-    this.sink.report(inExpression ? 'error' : 'warning', 'ambiguous-value', uri, range, message, { suggestions });
+    this.sink.report(inExpression ? 'error' : 'warning', 'ambiguous-value', uri, span, message, { suggestions });
   }
 
   private intendedReading(text: string, letter: string): { value: number; convention: string } | undefined {

@@ -2,7 +2,7 @@
 // line has and what follows them. Each reader returns the element, or an
 // UnmodeledElement with its reason, or undefined when the line is too broken to
 // place in the circuit (a diagnostic then says why).
-import type { ElementStatement, Field, Range, WordField } from '@pnlint/grammar';
+import type { ElementStatement, Field, Span, WordField } from '@pnlint/grammar';
 import type { Capacitor, Diode, Element, Inductor, Model, SourceLocation, UnmodeledElement, Waveform } from './circuit.js';
 import type { DiagnosticSink } from './diagnostics.js';
 import { describeModelType, isSimulatedModel, MODEL_TYPES_BY_LETTER } from './models.js';
@@ -90,7 +90,7 @@ function readNodes(context: ElementContext, statement: ElementStatement, fields:
       const found = fields.slice(0, count).filter(isNodeField).length;
       context.sink.error(
         context.uri,
-        statement.range,
+        statement.span,
         `${statement.name.text} has ${found} node${found === 1 ? '' : 's'} where ${count} are needed (${usage})`,
       );
       return undefined;
@@ -114,17 +114,17 @@ function findModel(
   const wanted = MODEL_TYPES_BY_LETTER[letter] ?? [];
   if (!isNodeField(field)) {
     const message = `${statement.name.text} names no model`;
-    context.sink.error(context.uri, statement.range, message);
+    context.sink.error(context.uri, statement.span, message);
     return { reason: message };
   }
   const model = context.model(field.text);
   if (!model) {
-    context.sink.report('warning', 'unknown-model', context.uri, field.range, `model ${field.text} not found: ${context.name} is not checked`, { element: context.name });
+    context.sink.report('warning', 'unknown-model', context.uri, field.span, `model ${field.text} not found: ${context.name} is not checked`, { element: context.name });
     return { reason: `model ${field.text} not found`, missingDefinition: field.text };
   }
   if (!wanted.includes(model.type)) {
     const message = `${model.name} is a ${describeModelType(model.type)} model, which a ${letter} element cannot use: ${context.name} is not checked`;
-    context.sink.error(context.uri, field.range, message, {
+    context.sink.error(context.uri, field.span, message, {
       related: [{ location: model.location, message: `${model.name} is defined here` }],
     });
     return { reason: `${model.name} is a ${describeModelType(model.type)} model` };
@@ -163,7 +163,7 @@ function readPassive(statement: ElementStatement, context: ElementContext): Elem
       valueGiven = true;
       continue;
     }
-    context.sink.warning(context.uri, field.range, `${field.kind === 'group' ? 'this list' : fieldText(field)} is not understood on a ${kind.quantity} line and is ignored`);
+    context.sink.warning(context.uri, field.span, `${field.kind === 'group' ? 'this list' : fieldText(field)} is not understood on a ${kind.quantity} line and is ignored`);
   }
   for (const key of kind.valueKeys) {
     const assign = assigns.get(key);
@@ -194,18 +194,18 @@ function readPassive(statement: ElementStatement, context: ElementContext): Elem
       letter === 'R'
         ? 'SPICE engines substitute a tiny default (1 mΩ in ngspice)'
         : `SPICE engines substitute ${letter === 'C' ? '0 F' : '0 H'}`;
-    context.sink.error(context.uri, statement.range, `${statement.name.text} has no ${kind.quantity} value; ${substitute}${hint}`);
+    context.sink.error(context.uri, statement.span, `${statement.name.text} has no ${kind.quantity} value; ${substitute}${hint}`);
   }
   if (valueGiven && value === undefined) return undefined; // the value's own diagnostic says why
   const multiplier = optionalNumber(context, assigns.get('m')?.value) ?? 1;
   if (multiplier <= 0) {
-    context.sink.error(context.uri, assigns.get('m')!.range, `the multiplier m must be positive`);
+    context.sink.error(context.uri, assigns.get('m')!.span, `the multiplier m must be positive`);
     return undefined;
   }
   if (letter === 'R') {
     let resistance = value ?? RESISTANCE_WITHOUT_VALUE;
     if (valueGiven && resistance === 0) {
-      context.sink.warning(context.uri, statement.range, `${statement.name.text} is 0 Ω; SPICE engines raise it to 1 mΩ (ngspice 39)`);
+      context.sink.warning(context.uri, statement.span, `${statement.name.text} is 0 Ω; SPICE engines raise it to 1 mΩ (ngspice 39)`);
       resistance = RESISTANCE_WITHOUT_VALUE;
     }
     return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'R', resistance: resistance / multiplier };
@@ -255,18 +255,18 @@ function readSource(statement: ElementStatement, context: ElementContext): Eleme
 
   const setDc = (field: Field) => {
     if (dcGiven) {
-      context.sink.warning(context.uri, field.range, `${statement.name.text} has a second DC value; SPICE engines use one, pnlint keeps the first`);
+      context.sink.warning(context.uri, field.span, `${statement.name.text} has a second DC value; SPICE engines use one, pnlint keeps the first`);
       return;
     }
     dc = context.value(field, letter);
     dcGiven = true;
   };
-  const setWaveform = (shape: WaveformShape, args: Field[], range: Range) => {
+  const setWaveform = (shape: WaveformShape, args: Field[], span: Span) => {
     if (waveform) {
-      context.sink.warning(context.uri, range, `${statement.name.text} has a second time behaviour; pnlint keeps the first`);
+      context.sink.warning(context.uri, span, `${statement.name.text} has a second time behaviour; pnlint keeps the first`);
       return;
     }
-    waveform = readWaveform(context, shape, args, range, letter);
+    waveform = readWaveform(context, shape, args, span, letter);
   };
 
   for (let i = 0; i < rest.length; i++) {
@@ -274,10 +274,10 @@ function readSource(statement: ElementStatement, context: ElementContext): Eleme
     const keyword = lower(field);
     if (field.kind === 'group') {
       const shape = field.name?.text.toLowerCase();
-      if (shape && (WAVEFORM_SHAPES as readonly string[]).includes(shape)) setWaveform(shape as WaveformShape, field.items, field.range);
+      if (shape && (WAVEFORM_SHAPES as readonly string[]).includes(shape)) setWaveform(shape as WaveformShape, field.items, field.span);
       else if (shape && UNSIMULATED_WAVEFORMS.has(shape)) unsimulatedWaveform(context, field.name!);
       else if (shape === 'ac' || shape === 'distof1' || shape === 'distof2') acGiven = true;
-      else context.sink.warning(context.uri, field.range, `${fieldText(field)} is not understood on a source line and is ignored`);
+      else context.sink.warning(context.uri, field.span, `${fieldText(field)} is not understood on a source line and is ignored`);
       continue;
     }
     if (field.kind === 'assign') {
@@ -289,7 +289,7 @@ function readSource(statement: ElementStatement, context: ElementContext): Eleme
       if (isValue(next)) {
         setDc(next!);
         i++;
-      } else context.sink.error(context.uri, field.range, `DC needs a value after it`);
+      } else context.sink.error(context.uri, field.span, `DC needs a value after it`);
       continue;
     }
     if (keyword === 'ac' || keyword === 'distof1' || keyword === 'distof2') {
@@ -302,14 +302,14 @@ function readSource(statement: ElementStatement, context: ElementContext): Eleme
       // Written without parentheses: the values up to the next keyword are its arguments.
       const group = rest[i + 1];
       if (group?.kind === 'group' && group.name === undefined) {
-        setWaveform(keyword as WaveformShape, group.items, { start: field.range.start, end: group.range.end });
+        setWaveform(keyword as WaveformShape, group.items, { start: field.span.start, end: group.span.end });
         i++;
         continue;
       }
       const args: Field[] = [];
       while (isValue(rest[i + 1])) args.push(rest[++i]!);
-      const end = args.length > 0 ? args[args.length - 1]!.range.end : field.range.end;
-      setWaveform(keyword as WaveformShape, args, { start: field.range.start, end });
+      const end = args.length > 0 ? args[args.length - 1]!.span.end : field.span.end;
+      setWaveform(keyword as WaveformShape, args, { start: field.span.start, end });
       continue;
     }
     if (keyword && UNSIMULATED_WAVEFORMS.has(keyword)) {
@@ -321,25 +321,25 @@ function readSource(statement: ElementStatement, context: ElementContext): Eleme
       setDc(field); // a bare value is the DC value
       continue;
     }
-    context.sink.warning(context.uri, field.range, `${fieldText(field)} is not understood on a source line and is ignored`);
+    context.sink.warning(context.uri, field.span, `${fieldText(field)} is not understood on a source line and is ignored`);
   }
   if (dcGiven && dc === undefined) return undefined; // its own diagnostic says why
   if (!dcGiven && !waveform && !acGiven) {
-    context.sink.info(context.uri, statement.range, `${statement.name.text} has no value; SPICE engines assume DC 0`);
+    context.sink.info(context.uri, statement.span, `${statement.name.text} has no value; SPICE engines assume DC 0`);
   }
   const value = dcGiven ? dc! : waveform ? valueAtTimeZero(waveform) : 0;
   return { name: context.name, nodes, location: context.location, instances: context.instances, type: letter, dc: value, waveform };
 }
 
 function unsimulatedWaveform(context: ElementContext, word: WordField): void {
-  context.sink.info(context.uri, word.range, `the ${word.text.toUpperCase()} time behaviour is not simulated; ${context.name} is taken at its DC value`);
+  context.sink.info(context.uri, word.span, `the ${word.text.toUpperCase()} time behaviour is not simulated; ${context.name} is taken at its DC value`);
 }
 
 function flattenArguments(fields: Field[]): Field[] {
   return fields.flatMap((field) => (field.kind === 'group' && field.name === undefined ? flattenArguments(field.items) : [field]));
 }
 
-function readWaveform(context: ElementContext, shape: WaveformShape, fields: Field[], range: Range, letter: string): Waveform | undefined {
+function readWaveform(context: ElementContext, shape: WaveformShape, fields: Field[], span: Span, letter: string): Waveform | undefined {
   const name = shape.toUpperCase();
   const args: number[] = [];
   const written = flattenArguments(fields).filter((f) => f.kind !== 'assign');
@@ -350,17 +350,17 @@ function readWaveform(context: ElementContext, shape: WaveformShape, fields: Fie
   }
   const most = WAVEFORM_ARGUMENTS[shape];
   if (args.length > most) {
-    context.sink.warning(context.uri, range, `${name} takes at most ${most} values; the ${args.length - most} after them are ignored`);
+    context.sink.warning(context.uri, span, `${name} takes at most ${most} values; the ${args.length - most} after them are ignored`);
     args.length = most;
   }
   if (args.length < WAVEFORM_REQUIRED[shape]) {
-    context.sink.warning(context.uri, range, `${name} needs at least ${WAVEFORM_REQUIRED[shape]} values; the missing ones are taken as 0`);
+    context.sink.warning(context.uri, span, `${name} needs at least ${WAVEFORM_REQUIRED[shape]} values; the missing ones are taken as 0`);
   }
   if (shape === 'pwl') {
-    if (args.length % 2 === 1) context.sink.warning(context.uri, range, `PWL takes time-value pairs; its last value has no pair and is ignored`);
+    if (args.length % 2 === 1) context.sink.warning(context.uri, span, `PWL takes time-value pairs; its last value has no pair and is ignored`);
     for (let i = 2; i + 1 < args.length; i += 2) {
       if (args[i]! < args[i - 2]!) {
-        context.sink.warning(context.uri, range, `PWL times must not decrease (${args[i]} s comes after ${args[i - 2]} s)`);
+        context.sink.warning(context.uri, span, `PWL times must not decrease (${args[i]} s comes after ${args[i - 2]} s)`);
         break;
       }
     }
@@ -398,14 +398,14 @@ function readControlled(statement: ElementStatement, context: ElementContext): E
   if (!voltageControlled) {
     const control = positional[index++];
     if (!isNodeField(control)) {
-      context.sink.error(context.uri, statement.range, `${statement.name.text} names no controlling voltage source (${usage})`);
+      context.sink.error(context.uri, statement.span, `${statement.name.text} names no controlling voltage source (${usage})`);
       return undefined;
     }
     controlSource = context.prefix + control.text;
   }
   const gainField = positional[index] ?? assigns.get('gain')?.value;
   if (!gainField) {
-    context.sink.error(context.uri, statement.range, `${statement.name.text} has no gain (${usage})`);
+    context.sink.error(context.uri, statement.span, `${statement.name.text} has no gain (${usage})`);
     return undefined;
   }
   const gain = context.value(gainField, '');
@@ -422,7 +422,7 @@ function switchState(context: ElementContext, fields: Field[]): boolean | undefi
     const word = lower(field);
     if (word === 'on') state = true;
     else if (word === 'off') state = false;
-    else context.sink.warning(context.uri, field.range, `${fieldText(field)} is not understood on a switch line and is ignored`);
+    else context.sink.warning(context.uri, field.span, `${fieldText(field)} is not understood on a switch line and is ignored`);
   }
   return state;
 }
@@ -439,7 +439,7 @@ function readSwitch(statement: ElementStatement, context: ElementContext): Eleme
   if (!voltageControlled) {
     const control = positional[index++];
     if (!isNodeField(control)) {
-      context.sink.error(context.uri, statement.range, `${statement.name.text} names no controlling voltage source (${usage})`);
+      context.sink.error(context.uri, statement.span, `${statement.name.text} names no controlling voltage source (${usage})`);
       return undefined;
     }
     controlSource = context.prefix + control.text;
@@ -463,7 +463,7 @@ function areaOf(context: ElementContext, positionalArea: Field | undefined, assi
   const multiplier = optionalNumber(context, assigns.get('m')?.value) ?? 1;
   if (area === undefined) return undefined;
   if (area <= 0 || multiplier <= 0) {
-    context.sink.error(context.uri, (areaField ?? assigns.get('m'))!.range, `the area and the multiplier m must be positive`);
+    context.sink.error(context.uri, (areaField ?? assigns.get('m'))!.span, `the area and the multiplier m must be positive`);
     return undefined;
   }
   return { area: area * multiplier, multiplier };
@@ -484,7 +484,7 @@ function readDiode(statement: ElementStatement, context: ElementContext): Elemen
   const areaField = positional[3]?.kind === 'word' && lower(positional[3]) === 'off' ? undefined : positional[3];
   if (areaField) {
     // SPICE3 takes a bare area after the model; ngspice 39 stops on it ("could not find a valid modelname", checked by running it).
-    context.sink.warning(context.uri, areaField.range, `ngspice does not accept a bare area on a diode line; write area=${fieldText(areaField)}`);
+    context.sink.warning(context.uri, areaField.span, `ngspice does not accept a bare area on a diode line; write area=${fieldText(areaField)}`);
   }
   const sized = areaOf(context, areaField, assigns);
   if (sized === undefined) return undefined;
@@ -534,7 +534,7 @@ function readMosfet(statement: ElementStatement, context: ElementContext): Eleme
   if (threeNodeModel) {
     const nodes = positional.slice(0, 3).filter(isNodeField).map((f) => context.node(f));
     if (threeNodeModel.type === 'VDMOS') return unmodeled(context, statement, nodes, `VDMOS power MOSFET models are not simulated`);
-    context.sink.error(context.uri, statement.range, `${statement.name.text} has 3 nodes where 4 are needed (M1 drain gate source bulk MODEL)`);
+    context.sink.error(context.uri, statement.span, `${statement.name.text} has 3 nodes where 4 are needed (M1 drain gate source bulk MODEL)`);
     return undefined;
   }
   const nodes = readNodes(context, statement, positional, 4, 'M1 drain gate source bulk MODEL [w= l=]');
@@ -549,7 +549,7 @@ function readMosfet(statement: ElementStatement, context: ElementContext): Eleme
   const length = optionalNumber(context, assigns.get('l')?.value) ?? context.options['defl'] ?? DEFAULT_MOSFET_LENGTH;
   const multiplier = optionalNumber(context, assigns.get('m')?.value) ?? 1;
   if (width <= 0 || length <= 0 || multiplier <= 0) {
-    context.sink.error(context.uri, statement.range, `${statement.name.text}: w, l and m must be positive`);
+    context.sink.error(context.uri, statement.span, `${statement.name.text}: w, l and m must be positive`);
     return undefined;
   }
   return { name: context.name, nodes, location: context.location, instances: context.instances, type: 'M', model, width, length, multiplier, off: hasFlag(positional, 'off', 5) };
@@ -562,18 +562,18 @@ function readCoupling(statement: ElementStatement, context: ElementContext): Ele
   const first = positional[0];
   const second = positional[1];
   if (!isNodeField(first) || !isNodeField(second)) {
-    context.sink.error(context.uri, statement.range, `${statement.name.text} needs two inductors and a coupling coefficient (K1 L1 L2 0.99)`);
+    context.sink.error(context.uri, statement.span, `${statement.name.text} needs two inductors and a coupling coefficient (K1 L1 L2 0.99)`);
     return undefined;
   }
   const coefficientField = positional[2] ?? assigns.get('k')?.value;
   if (!coefficientField) {
-    context.sink.error(context.uri, statement.range, `${statement.name.text} has no coupling coefficient (K1 L1 L2 0.99)`);
+    context.sink.error(context.uri, statement.span, `${statement.name.text} has no coupling coefficient (K1 L1 L2 0.99)`);
     return undefined;
   }
   const coefficient = context.value(coefficientField, '');
   if (coefficient === undefined) return undefined;
   if (Math.abs(coefficient) > 1) {
-    context.sink.error(context.uri, coefficientField.range, `a coupling coefficient lies between -1 and 1, not ${coefficient}`);
+    context.sink.error(context.uri, coefficientField.span, `a coupling coefficient lies between -1 and 1, not ${coefficient}`);
   }
   return { name: context.name, nodes: [], location: context.location, instances: context.instances, type: 'K', inductors: [context.prefix + first.text, context.prefix + second.text], coefficient };
 }

@@ -1,7 +1,7 @@
 // Our own evaluator for SPICE expressions (`{…}`, `'…'`, `.param`, `.func`, `.if`).
 // No `eval`: it walks the typed tree. It never throws; every failure is reported
-// once, at the range where it happens, and the value is then undefined.
-import type { Expr, Range } from '@pnlint/grammar';
+// once, at the span where it happens, and the value is then undefined.
+import type { Expr, Span } from '@pnlint/grammar';
 import type { DiagnosticSink } from './diagnostics.js';
 
 /** A parameter that exists but could not be evaluated (already reported): callers stay silent. */
@@ -32,7 +32,7 @@ export interface EvaluationContext {
   uri: string;
   sink: DiagnosticSink;
   /** Called for each number literal, so that ambiguous values (`4k7`) are reported wherever they appear. */
-  onNumber?: (text: string, range: Range) => void;
+  onNumber?: (text: string, span: Span) => void;
 }
 
 /** Deeper trees than this are reported instead of risking the call stack. */
@@ -88,14 +88,14 @@ const BUILTINS: Readonly<Record<string, Builtin>> = {
 /** Names the evaluator knows as functions, for completion and hover. */
 export const BUILTIN_FUNCTIONS: readonly string[] = [...Object.keys(BUILTINS), 'if'];
 
-function fail(context: EvaluationContext, range: Range, message: string): undefined {
-  context.sink.error(context.uri, range, message);
+function fail(context: EvaluationContext, span: Span, message: string): undefined {
+  context.sink.error(context.uri, span, message);
   return undefined;
 }
 
-function finite(context: EvaluationContext, range: Range, value: number, what: string): number | undefined {
+function finite(context: EvaluationContext, span: Span, value: number, what: string): number | undefined {
   if (Number.isFinite(value)) return value;
-  return fail(context, range, `${what} is ${Number.isNaN(value) ? 'not a real number' : 'infinite'}`);
+  return fail(context, span, `${what} is ${Number.isNaN(value) ? 'not a real number' : 'infinite'}`);
 }
 
 /** The value of `expr`, or undefined after reporting why there is none. */
@@ -104,11 +104,11 @@ export function evaluateExpression(expr: Expr, context: EvaluationContext): numb
 }
 
 function evaluate(expr: Expr, context: EvaluationContext, nesting: number, calls: number): number | undefined {
-  if (nesting > MAXIMUM_NESTING) return fail(context, expr.range, 'expression is nested too deeply to evaluate');
+  if (nesting > MAXIMUM_NESTING) return fail(context, expr.span, 'expression is nested too deeply to evaluate');
   const next = (e: Expr) => evaluate(e, context, nesting + 1, calls);
   switch (expr.kind) {
     case 'num':
-      context.onNumber?.(expr.text, expr.range);
+      context.onNumber?.(expr.text, expr.span);
       return expr.value;
     case 'ident': {
       const name = expr.name.toLowerCase();
@@ -117,7 +117,7 @@ function evaluate(expr: Expr, context: EvaluationContext, nesting: number, calls
       if (value !== undefined) return value;
       const constant = CONSTANTS[name];
       if (constant !== undefined) return constant;
-      return fail(context, expr.range, `unknown parameter ${expr.name}`);
+      return fail(context, expr.span, `unknown parameter ${expr.name}`);
     }
     case 'unary': {
       const operand = next(expr.operand);
@@ -138,20 +138,20 @@ function evaluate(expr: Expr, context: EvaluationContext, nesting: number, calls
       if (left === undefined || right === undefined) return undefined;
       switch (expr.op) {
         case '+':
-          return finite(context, expr.range, left + right, 'the sum');
+          return finite(context, expr.span, left + right, 'the sum');
         case '-':
-          return finite(context, expr.range, left - right, 'the difference');
+          return finite(context, expr.span, left - right, 'the difference');
         case '*':
-          return finite(context, expr.range, left * right, 'the product');
+          return finite(context, expr.span, left * right, 'the product');
         case '/':
-          if (right === 0) return fail(context, expr.range, 'division by zero');
-          return finite(context, expr.range, left / right, 'the quotient');
+          if (right === 0) return fail(context, expr.span, 'division by zero');
+          return finite(context, expr.span, left / right, 'the quotient');
         case '%':
-          if (right === 0) return fail(context, expr.range, 'remainder of a division by zero');
+          if (right === 0) return fail(context, expr.span, 'remainder of a division by zero');
           return left % right;
         case '^':
         case '**':
-          return finite(context, expr.range, Math.pow(left, right), 'the power');
+          return finite(context, expr.span, Math.pow(left, right), 'the power');
         case '==':
           return left === right ? 1 : 0;
         case '!=':
@@ -187,9 +187,9 @@ function call(
   const user = context.scope.userFunction(name);
   if (user) {
     if (expr.args.length !== user.parameters.length) {
-      return fail(context, expr.range, `${user.name} takes ${user.parameters.length} argument(s), not ${expr.args.length}`);
+      return fail(context, expr.span, `${user.name} takes ${user.parameters.length} argument(s), not ${expr.args.length}`);
     }
-    if (calls >= MAXIMUM_CALL_DEPTH) return fail(context, expr.range, `${user.name} calls itself too deeply to evaluate`);
+    if (calls >= MAXIMUM_CALL_DEPTH) return fail(context, expr.span, `${user.name} calls itself too deeply to evaluate`);
     const values: number[] = [];
     for (const arg of expr.args) {
       const value = next(arg);
@@ -207,15 +207,15 @@ function call(
     return evaluate(user.body, bodyContext, nesting + 1, calls + 1);
   }
   if (name === 'if') {
-    if (expr.args.length !== 3) return fail(context, expr.range, `if takes 3 arguments (condition, then, else), not ${expr.args.length}`);
+    if (expr.args.length !== 3) return fail(context, expr.span, `if takes 3 arguments (condition, then, else), not ${expr.args.length}`);
     const condition = next(expr.args[0]!);
     if (condition === undefined) return undefined;
     return next(condition !== 0 ? expr.args[1]! : expr.args[2]!);
   }
   const builtin = BUILTINS[name];
-  if (!builtin) return fail(context, expr.range, `unknown function ${expr.name}`);
+  if (!builtin) return fail(context, expr.span, `unknown function ${expr.name}`);
   if (expr.args.length !== builtin.arity) {
-    return fail(context, expr.range, `${name} takes ${builtin.arity} argument(s), not ${expr.args.length}`);
+    return fail(context, expr.span, `${name} takes ${builtin.arity} argument(s), not ${expr.args.length}`);
   }
   const values: number[] = [];
   for (const arg of expr.args) {
@@ -223,5 +223,5 @@ function call(
     if (value === undefined) return undefined;
     values.push(value);
   }
-  return finite(context, expr.range, builtin.apply(values), `${name}(${values.join(', ')})`);
+  return finite(context, expr.span, builtin.apply(values), `${name}(${values.join(', ')})`);
 }

@@ -152,7 +152,7 @@ export function readModel(statement: ModelStatement, uri: string, scope: Paramet
       continue;
     }
     if (checkNames && !known.parameters.has(key)) {
-      sink.warning(uri, assign.key.range, `${assign.key.text} is not a ${known.description} model parameter; it is ignored`);
+      sink.warning(uri, assign.key.span, `${assign.key.text} is not a ${known.description} model parameter; it is ignored`);
       continue;
     }
     const value = scope.evaluateField(assign.value, uri);
@@ -161,11 +161,11 @@ export function readModel(statement: ModelStatement, uri: string, scope: Paramet
   if (known === MOSFET && level !== undefined && level !== SIMULATED_MOSFET_LEVEL) {
     sink.info(
       uri,
-      statement.name.range,
+      statement.name.span,
       `${statement.name.text} is a level ${level} MOSFET model; pnlint simulates level ${SIMULATED_MOSFET_LEVEL} only, so the transistors that use it are not checked`,
     );
   }
-  return { name: statement.name.text, type, params, location: { uri, range: statement.range } };
+  return { name: statement.name.text, type, params, location: sink.location(uri, statement.span) };
 }
 
 /** True when the solver has equations for elements using this model. */

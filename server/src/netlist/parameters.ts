@@ -3,7 +3,7 @@
 // its body. Values are evaluated lazily, on first use, which evaluates them in
 // dependency order whatever order they were written in; a cycle is reported at
 // the `.param` where it closes.
-import type { Field, Range } from '@pnlint/grammar';
+import type { Field, Span } from '@pnlint/grammar';
 import { isAmbiguousNumber, readSpiceNumber } from '@pnlint/grammar';
 import type { DiagnosticSink } from './diagnostics.js';
 import { FAILED, evaluateExpression, type EvaluationContext, type ExpressionScope, type UserFunction } from './expressions.js';
@@ -14,7 +14,7 @@ interface Definition {
   field: Field | undefined;
   uri: string;
   /** The `name=value` text: where a cycle is reported. */
-  range: Range;
+  span: Span;
   state: 'pending' | 'evaluating' | 'done' | 'failed';
   value: number | undefined;
   /** Instance overrides are not replaced by a `.param` of the same name in the body. */
@@ -31,7 +31,7 @@ export class ParameterEvaluation {
      * Reports ambiguous numbers (`4k7`) wherever they are read. `inExpression` is true inside
      * `{…}` and in `.param` values, where ngspice refuses them instead of truncating.
      */
-    readonly onNumber: (uri: string, text: string, range: Range, letter: string, inExpression: boolean) => void,
+    readonly onNumber: (uri: string, text: string, span: Span, letter: string, inExpression: boolean) => void,
   ) {}
 }
 
@@ -49,14 +49,14 @@ export class ParameterScope implements ExpressionScope {
   }
 
   /** A parameter with a known value (an instance override, evaluated in the caller's scope). */
-  setValue(name: string, value: number | undefined, uri: string, range: Range, fixed = false): void {
+  setValue(name: string, value: number | undefined, uri: string, span: Span, fixed = false): void {
     const key = name.toLowerCase();
     if (this.definitions.get(key)?.fixed) return;
     this.definitions.set(key, {
       name,
       field: undefined,
       uri,
-      range,
+      span,
       state: value === undefined ? 'failed' : 'done',
       value,
       fixed,
@@ -65,10 +65,10 @@ export class ParameterScope implements ExpressionScope {
   }
 
   /** A parameter evaluated on first use, in this scope. A later definition of the same name replaces an earlier one. */
-  define(name: string, field: Field, uri: string, range: Range): void {
+  define(name: string, field: Field, uri: string, span: Span): void {
     const key = name.toLowerCase();
     if (this.definitions.get(key)?.fixed) return;
-    this.definitions.set(key, { name, field, uri, range, state: 'pending', value: undefined, fixed: false, scope: this });
+    this.definitions.set(key, { name, field, uri, span, state: 'pending', value: undefined, fixed: false, scope: this });
   }
 
   defineFunction(fn: UserFunction): void {
@@ -136,10 +136,10 @@ export class ParameterScope implements ExpressionScope {
     const cycle = stack.slice(stack.indexOf(closing));
     for (const member of cycle) member.state = 'failed';
     const chain = [...cycle.map((d) => d.name), closing.name].join(' → ');
-    this.evaluation.sink.error(closing.uri, closing.range, `parameter ${closing.name} depends on itself: ${chain}`, {
+    this.evaluation.sink.error(closing.uri, closing.span, `parameter ${closing.name} depends on itself: ${chain}`, {
       related: cycle
         .filter((d) => d !== closing)
-        .map((d) => ({ location: { uri: d.uri, range: d.range }, message: `${d.name} is defined here` })),
+        .map((d) => ({ location: this.evaluation.sink.location(d.uri, d.span), message: `${d.name} is defined here` })),
     });
   }
 }
@@ -151,7 +151,7 @@ function expressionContext(scope: ParameterScope, uri: string, letter: string): 
     scope,
     uri,
     sink: evaluation.sink,
-    onNumber: (text, range) => evaluation.onNumber(uri, text, range, letter, true),
+    onNumber: (text, span) => evaluation.onNumber(uri, text, span, letter, true),
   };
 }
 
@@ -159,7 +159,7 @@ function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, lette
   const evaluation = scope.evaluation;
   switch (field.kind) {
     case 'number':
-      evaluation.onNumber(uri, field.text, field.range, letter, isParameter);
+      evaluation.onNumber(uri, field.text, field.span, letter, isParameter);
       return field.value;
     case 'expression':
       // An expression that does not parse already has its syntax diagnostic.
@@ -167,14 +167,14 @@ function evaluateFieldIn(scope: ParameterScope, field: Field, uri: string, lette
     case 'word': {
       const number = readSpiceNumber(field.text);
       if (number) {
-        evaluation.onNumber(uri, field.text, field.range, letter, isParameter);
+        evaluation.onNumber(uri, field.text, field.span, letter, isParameter);
         return number.value;
       }
-      return evaluateExpression({ kind: 'ident', name: field.text, range: field.range }, expressionContext(scope, uri, letter));
+      return evaluateExpression({ kind: 'ident', name: field.text, span: field.span }, expressionContext(scope, uri, letter));
     }
     case 'assign':
     case 'group':
-      evaluation.sink.error(uri, field.range, `expected a value, found ${field.kind === 'assign' ? 'an assignment' : 'a list in parentheses'}`);
+      evaluation.sink.error(uri, field.span, `expected a value, found ${field.kind === 'assign' ? 'an assignment' : 'a list in parentheses'}`);
       return undefined;
   }
 }
