@@ -150,6 +150,14 @@ interface Pending {
 /** A request whose worker died this many times is failed, not retried: it is probably what kills it. */
 const ATTEMPTS_PER_REQUEST = 2;
 
+/**
+ * The analysis worker's young generation, at most (MB). Reading a netlist makes millions of
+ * short-lived tokens next to a syntax tree that lives on; with a worker's default (smaller)
+ * young generation the collector copies the tree again and again. Measured on a 10 MB netlist:
+ * repeated parses 1.1–1.4× faster at 128 MB than at the default. V8 grows it only as far as a file needs.
+ */
+export const ANALYSIS_YOUNG_GENERATION_MB = 128;
+
 /** The result of an analysis that was stopped before it started or finished. */
 export const CANCELLED_RESULT: RunResult = { findings: [], filesRead: [], versionsRead: [], asked: [], complete: false, milliseconds: 0 };
 
@@ -186,6 +194,7 @@ export class WorkerRunner implements AnalysisRunner {
     this.waitingRuns = new Int32Array(new SharedArrayBuffer(4));
     const worker = new Worker(fileURLToPath(this.script), {
       workerData: { [WORKER_MARKER]: true, [WAITING_RUNS]: this.waitingRuns.buffer },
+      resourceLimits: { maxYoungGenerationSizeMb: ANALYSIS_YOUNG_GENERATION_MB },
       stdout: true,
       stderr: true,
     });
