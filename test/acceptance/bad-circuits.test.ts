@@ -162,6 +162,17 @@ describe.runIf(ngspice)('reversed-diode: clamps and freewheel diodes that conduc
     expect(referenceSolve(readCircuit(`bad/${file}`), ['v(pin)']).get('v(pin)')!).toBeGreaterThan(2.5);
   });
 
+  it('the same clamp fault drawn with a 0 V current probe in the clamp lead is still caught, at the pin (b31)', () => {
+    const file = 'b31-probed-pin-clamp-reversed.cir';
+    const found = finding(file, 'reversed-diode');
+    expectAt(found, 'warning', 6, 'DUP');
+    expect(found.message).toMatch(/into pin .* holding pin at .* VKEY drives it to 0 V through RSER/);
+    // ngspice 39 at the high corner: the probe is a wire at DC, so the numbers are b29's.
+    const netlist = withLines(readCircuit(`bad/${file}`), { V3V3: `V3V3 v3v3 0 DC ${3.3 * HIGH}` });
+    expect(near(quantityAfter(found.message, 'carries', 'A'), referenceDiodeCurrent(netlist, 'DUP'))).toBe(true);
+    expect(near(quantityAfter(found.message, 'holding pin at', 'V'), referenceSolve(netlist, ['v(pin)']).get('v(pin)')!)).toBe(true);
+  });
+
   it('a freewheel diode fitted anode to the 24 V supply across a coil whose transistor is off (b30)', () => {
     const file = 'b30-freewheel-reversed-switch-off.cir';
     const found = finding(file, 'reversed-diode');

@@ -46,6 +46,7 @@ const FIXABLE: Record<string, { rule: string; element: string }> = {
   'b28-ac-led-series-blocker.cir': { rule: 'reverse-overvoltage', element: 'DLED' },
   'b29-pin-clamp-reversed.cir': { rule: 'reversed-diode', element: 'DUP' },
   'b30-freewheel-reversed-switch-off.cir': { rule: 'reversed-diode', element: 'DFLY' },
+  'b31-probed-pin-clamp-reversed.cir': { rule: 'reversed-diode', element: 'DUP' },
 };
 
 let folder: string;

@@ -61,6 +61,7 @@ const COMPARED = [
   'g16-led-string.cir',
   'g18-subcircuit-channels.cir',
   'g19-params-include.cir',
+  'g23-probed-clamps.cir',
 ];
 
 let report: CheckReport;

@@ -2,12 +2,15 @@
 // a capacitor is open at DC, a controlled source's sensing pins and a MOSFET's gate
 // draw nothing. Rules use it to find a diode's series resistor, its parallel partners,
 // an inductor it freewheels, and the part of the circuit an unmodeled element touches.
-import { GROUND, type Circuit, type Element, type Resistor } from '../netlist/circuit.js';
+import { GROUND, type Circuit, type Element, type Resistor, type VoltageSource } from '../netlist/circuit.js';
 
 export interface Topology {
   /** Node → elements with a current-carrying terminal on it. */
   connections: Map<string, Element[]>;
-  /** Nodes held by an ideal voltage source to ground (supply rails), ground included. */
+  /**
+   * Nodes held at a fixed voltage (supply rails), ground included: those an ideal voltage
+   * source ties to ground, or to another rail (a stacked supply, an ammeter in a supply lead).
+   */
   rails: Set<string>;
   /** The end nodes of each inductor with its series chain, for freewheel detection. */
   inductorSpans: [string, string][];
@@ -41,11 +44,61 @@ export function buildTopology(circuit: Circuit): Topology {
       connections.set(node, list);
     }
   }
-  const rails = new Set<string>([GROUND]);
-  for (const element of circuit.elements) {
-    if (element.type === 'V' && element.nodes.includes(GROUND)) for (const node of element.nodes) rails.add(node);
-  }
+  const rails = railsOf(circuit.elements);
   return { connections, rails, inductorSpans: inductorSpans(connections, rails, circuit.elements) };
+}
+
+/** Ground and every node that a chain of ideal voltage sources ties to it. */
+function railsOf(elements: readonly Element[]): Set<string> {
+  const sourcesAt = new Map<string, Element[]>();
+  for (const element of elements) {
+    if (element.type !== 'V') continue;
+    for (const node of element.nodes) {
+      const list = sourcesAt.get(node);
+      if (list) list.push(element);
+      else sourcesAt.set(node, [element]);
+    }
+  }
+  const rails = new Set<string>([GROUND]);
+  const stack = [GROUND];
+  while (stack.length > 0) {
+    const node = stack.pop()!;
+    for (const source of sourcesAt.get(node) ?? []) {
+      for (const other of source.nodes) {
+        if (rails.has(other)) continue;
+        rails.add(other);
+        stack.push(other);
+      }
+    }
+  }
+  return rails;
+}
+
+/** A 0 V source with no time behaviour: an ammeter, which at DC is a wire. */
+export function isAmmeter(element: Element): element is VoltageSource {
+  return element.type === 'V' && element.dc === 0 && element.waveform === undefined;
+}
+
+/**
+ * The elements joined at `node` other than `except`, looking through ammeters (a current
+ * probe drawn in a lead joins what hangs on its far side to this node), each with the node
+ * it is attached at.
+ */
+export function joinedAt(topology: Topology, node: string, except: Element): { element: Element; node: string }[] {
+  const joined: { element: Element; node: string }[] = [];
+  const seen = new Set<Element>([except]);
+  const visit = (at: string): void => {
+    for (const element of topology.connections.get(at) ?? []) {
+      if (seen.has(element)) continue;
+      seen.add(element);
+      if (isAmmeter(element)) {
+        const far = otherNode(element, at);
+        if (far !== undefined && far !== at) visit(far);
+      } else joined.push({ element, node: at });
+    }
+  };
+  visit(node);
+  return joined;
 }
 
 /** The other current-carrying terminal of a two-terminal path (a MOSFET's source for its drain, not its gate). */
@@ -161,7 +214,7 @@ export function resistivePathEnd(topology: Topology, resistor: Resistor, node: s
   const resistors = [resistor];
   for (const next of seriesChain(topology, resistor, end)) {
     if (next.type === 'R') resistors.push(next);
-    else if (!(next.type === 'V' && next.dc === 0 && next.waveform === undefined)) return undefined;
+    else if (!isAmmeter(next)) return undefined;
     end = otherNode(next, end);
     if (end === undefined) return undefined;
   }

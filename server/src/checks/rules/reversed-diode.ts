@@ -12,7 +12,7 @@ import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext, type CheckedDiode } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { unusedName } from '../regions.js';
-import { bridgesInductor, currentNodes, resistivePathEnd } from '../topology.js';
+import { bridgesInductor, currentNodes, joinedAt, resistivePathEnd } from '../topology.js';
 import {
   CONDUCTION_THRESHOLD,
   forwardCurrent,
@@ -102,9 +102,10 @@ function clampFittedBackwards(context: CheckContext, diode: CheckedDiode): Findi
   const pinVoltage = nodes[cathode];
   if (railVoltage === undefined || pinVoltage === undefined || !(railVoltage > 0)) return undefined;
   // An OR output: another diode feeds the same node from somewhere other than ground.
-  const orPartner = (connections.get(cathode) ?? []).some((other) => other !== element && other.type === 'D' && other.nodes[1] === cathode && other.nodes[0] !== GROUND);
+  const joined = joinedAt(context.topology, cathode, element);
+  const orPartner = joined.some(({ element: other, node }) => other.type === 'D' && other.nodes[1] === node && other.nodes[0] !== GROUND);
   if (orPartner) return undefined;
-  const driver = drivingSource(context, cathode, anode, nodes, railVoltage);
+  const driver = drivingSource(context, cathode, joined, anode, nodes, railVoltage);
   if (!driver) return undefined;
   // The counterfactual: turned around, it idles at every corner that solves.
   const flipped: Diode = { ...element, nodes: [cathode, anode] };
@@ -113,18 +114,19 @@ function clampFittedBackwards(context: CheckContext, diode: CheckedDiode): Findi
   if (flippedCurrents.length === 0 || flippedCurrents.some((current) => current >= CONDUCTION_THRESHOLD)) return undefined;
   const name = element.name;
   const through = driver.resistors.map((resistor) => resistor.name).join(' and ');
+  const pin = driver.node; // the pin itself, where the driver's resistor meets it (the cathode, or across a probe from it)
   return makeFinding(
     ID,
     'warning',
     `${kindNameOpening(diode.kind)} ${name} looks like a clamp fitted backwards: its anode is on the supply rail ${anode} (${formatQuantity(railVoltage, 'V')}) and it carries ` +
-      `${formatQuantity(worst.value, 'A')} into ${cathode} ${atCorner(worst.at.plan)}, holding ${cathode} at ${formatQuantity(pinVoltage, 'V')} although ${driver.source.name} drives it to ` +
+      `${formatQuantity(worst.value, 'A')} into ${pin} ${atCorner(worst.at.plan)}, holding ${pin} at ${formatQuantity(pinVoltage, 'V')} although ${driver.source.name} drives it to ` +
       `${formatQuantity(driver.voltage, 'V')} through ${through}. Turned around (cathode to ${anode}) it would idle, and clamp only above the rail.`,
     element.location,
     {
       element: name,
       related: [
         ...cornerSources(context, worst.at.plan),
-        { location: driver.source.location, message: `${driver.source.name}, which drives ${cathode}` },
+        { location: driver.source.location, message: `${driver.source.name}, which drives ${pin}` },
         ...driver.resistors.map((resistor) => ({ location: resistor.location, message: `${resistor.name} (${formatQuantity(resistor.resistance, 'Ω')}) from the driver` })),
       ],
     },
@@ -134,25 +136,26 @@ function clampFittedBackwards(context: CheckContext, diode: CheckedDiode): Findi
 /**
  * An independent source, other than ground and the diode's own rail, that drives `node`
  * through resistors from a level inside the rails (what a clamp guards), taking the diode's
- * current at this operating point.
+ * current at this operating point. `joined`: the elements at `node` (joinedAt).
  */
 function drivingSource(
   context: CheckContext,
   node: string,
+  joined: readonly { element: Element; node: string }[],
   diodeRail: string,
   nodes: Readonly<Record<string, number>>,
   railVoltage: number,
-): { source: VoltageSource; voltage: number; resistors: Resistor[] } | undefined {
+): { source: VoltageSource; voltage: number; resistors: Resistor[]; node: string } | undefined {
   const { rails, connections } = context.topology;
-  for (const resistor of connections.get(node) ?? []) {
+  for (const { element: resistor, node: at } of joined) {
     if (resistor.type !== 'R') continue;
-    const path = resistivePathEnd(context.topology, resistor, node);
+    const path = resistivePathEnd(context.topology, resistor, at);
     if (!path || path.end === GROUND || path.end === diodeRail || !rails.has(path.end)) continue;
     const voltage = nodes[path.end];
     const here = nodes[node];
     if (voltage === undefined || here === undefined || voltage < 0 || voltage > railVoltage || here <= voltage) continue;
     const source = (connections.get(path.end) ?? []).find((each): each is VoltageSource => each.type === 'V' && each.nodes.includes(GROUND));
-    if (source) return { source, voltage, resistors: path.resistors };
+    if (source) return { source, voltage, resistors: path.resistors, node: at };
   }
   return undefined;
 }
@@ -311,9 +314,12 @@ function reversedVerdict(context: CheckContext, diode: CheckedDiode, best: { cur
   );
 }
 
-/** A diode that carries its branch's whole current: one of its nodes (not a rail) joins it to exactly one other element. */
+/**
+ * A diode that carries its branch's whole current: one of its nodes (not a rail) joins it to
+ * exactly one other element (an ammeter in between is a wire: the probe carries the same current).
+ */
 function isSeriesDiode(context: CheckContext, element: CheckedDiode['element']): boolean {
-  return element.nodes.some((node) => !context.topology.rails.has(node) && (context.topology.connections.get(node)?.length ?? 0) === 2);
+  return element.nodes.some((node) => !context.topology.rails.has(node) && joinedAt(context.topology, node, element).length === 1);
 }
 
 /** The conducting diodes, indexed by their anode and cathode nodes. */
