@@ -6,7 +6,8 @@ import type { Circuit, FileReader, NetlistDiagnostic } from './netlist/circuit.j
 import { elaborate, type ElaborateOptions } from './netlist/index.js';
 import { checkCircuit, type CheckResult } from './checks/index.js';
 import { effectiveSettings, readWorkspaceConfig, type WorkspaceConfig } from './config.js';
-import { attachVerifiedFixes } from './fixes/index.js';
+import { attachVerifiedFixes, FixSession } from './fixes/index.js';
+import { combinePreferredFixes, type CombinedFixes } from './fixes/combined.js';
 import type { Finding } from './findings.js';
 import type { CancellationToken } from './sim/types.js';
 import { DEFAULT_SETTINGS, type Settings } from './settings.js';
@@ -41,6 +42,8 @@ export interface Analysis {
   /** False when cancelled before it finished; its findings are then incomplete. */
   complete: boolean;
   milliseconds: number;
+  /** With verified fixes (withVerifiedFixes): the preferred fixes that pass a re-check applied together, for "fix all". */
+  fixAll?: CombinedFixes;
 }
 
 /** Diagnostics the checks pass through themselves (they decide what each means for the diodes). */
@@ -92,9 +95,17 @@ export function withVerifiedFixes(analysis: Analysis, input: AnalysisInput): Ana
   const started = performance.now();
   const checked = verifiedFixes(input, analysis.circuit, analysis.check, analysis.config);
   const configFindings = input.config ? readWorkspaceConfig(input.config.uri, input.config.text).findings : [];
+  const findings = visibleFindings(input, configFindings, analysis.circuit, checked, analysis.config);
+  // Verified together with a budget of its own: the fixes above spent theirs.
+  const session = new FixSession(analysis.circuit, analysis.check.findings, input.files, input.settings ?? DEFAULT_SETTINGS, analysis.config, {
+    ...(input.cancellation ? { cancellation: input.cancellation } : {}),
+    elaborate: elaborationOptions(input),
+  });
+  const fixAll = combinePreferredFixes(findings, session);
   return {
     ...analysis,
-    findings: visibleFindings(input, configFindings, analysis.circuit, checked, analysis.config),
+    findings,
+    fixAll,
     complete: !input.cancellation?.isCancellationRequested,
     milliseconds: analysis.milliseconds + performance.now() - started,
   };

@@ -87,3 +87,52 @@ describe('fixes as code actions', () => {
     expect(fresh.diagnostics.find((d) => d.code === 'ambiguous-value')?.range).toEqual({ start: { line: 3, character: 7 }, end: { line: 3, character: 10 } });
   });
 });
+
+describe('fix all offers only what a re-check of the combination passes', () => {
+  // Two LEDs on a zener-regulated rail (test/fixes/combined.test.ts has ngspice 39's numbers):
+  // each resistor fix is right alone, but both together put the zener over its rating.
+  const PANEL = [
+    'status panel: two indicator LEDs on a zener-regulated 5.1 V rail',
+    'VIN in 0 DC 12',
+    'RFEED in z 100',
+    'DZ 0 z ZREF',
+    '*pnlint: rating ZREF kind=zener vz=5.1 pd=200m',
+    'R1 z a1 68',
+    'D1 a1 0 DLED',
+    'R2 z a2 68',
+    'D2 a2 0 DLED',
+    '*pnlint: rating DLED kind=led if=20m',
+    '.model ZREF D(IS=1e-14 N=1 RS=2 BV=5.1 IBV=5m)',
+    '.model DLED D(IS=1e-20 N=1.8 RS=2.5)',
+    '.end',
+    '',
+  ].join('\n');
+  let client: TestClient;
+  const workspace = makeFolder({});
+  const uri = workspace.uri('panel.cir');
+
+  beforeAll(async () => {
+    client = await startServer({ folders: [workspace.folder], settings: { debounceMilliseconds: 0 } });
+    client.open(uri, PANEL);
+    await client.diagnostics(uri);
+  });
+  afterAll(async () => {
+    await client.stop();
+    workspace.cleanup();
+  });
+
+  it('applies one of the two resistor fixes, not both', async () => {
+    const { diagnostics } = client.publishedFor(uri).at(-1)!;
+    expect(diagnostics.filter((d) => d.code === 'led-current-unlimited')).toHaveLength(2);
+    const actions = await client.request<CodeAction[]>('textDocument/codeAction', {
+      textDocument: { uri },
+      range: { start: { line: 0, character: 0 }, end: { line: 12, character: 0 } },
+      context: { diagnostics: [], only: ['source.fixAll.pnlint'] },
+    });
+    expect(actions.map((a) => a.title)).toEqual(['Apply all 1 preferred pnlint fix']);
+    const change = actions[0]!.edit!.documentChanges![0] as TextDocumentEdit;
+    const fixed = applyLspEdits(PANEL, change.edits).split('\n');
+    expect(fixed[5]).not.toBe('R1 z a1 68');
+    expect(fixed[7]).toBe('R2 z a2 68');
+  });
+});

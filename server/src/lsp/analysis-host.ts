@@ -61,8 +61,8 @@ export function buildFixes(phaseOne: PhaseOne, cancellation: Cancellation): Fixe
   const fixed = withVerifiedFixes(phaseOne.analysis, { ...phaseOne.input, cancellation });
   if (!fixed.complete) return undefined;
   // The same findings in the same order, or none of the fixes: the diagnostics point at them by position.
-  const findings = fixed.findings.length === phaseOne.result.findings.length ? fixed.findings : phaseOne.result.findings;
-  return { findings, milliseconds: performance.now() - started };
+  const same = fixed.findings.length === phaseOne.result.findings.length;
+  return { findings: same ? fixed.findings : phaseOne.result.findings, fixAll: same ? fixed.fixAll : undefined, milliseconds: performance.now() - started };
 }
 
 /**

@@ -15,6 +15,7 @@ import type { ServerSettings } from './settings.js';
 import { uriKey, type Workspace } from './workspace.js';
 import { STATUS_NOTIFICATION, type StatusParams } from './protocol.js';
 import type { AnalysisRunner, FixedFindings, Run, RunResult } from './runner.js';
+import type { CombinedFixes } from '../fixes/combined.js';
 
 /** The last published check of one document, kept for hover, code actions and the rest. */
 export interface Checked {
@@ -29,6 +30,8 @@ export interface Checked {
   diodes: DiodeReport[];
   /** True once the findings carry their verified fixes. */
   fixesReady: boolean;
+  /** Once the fixes are ready: the preferred ones that passed a re-check applied together ("fix all"). */
+  fixAll: CombinedFixes | undefined;
   /** Settles when the fixes are in `findings`, or will not come (a newer edit, a failure). */
   fixesSettled: Promise<void>;
   /** Settles when the diode reports are in `diodes`, or will not come. */
@@ -186,6 +189,7 @@ export class Checker {
       findings: analysis.findings,
       diodes: [],
       fixesReady: library,
+      fixAll: undefined,
       fixesSettled: Promise.resolve(),
       diodesSettled: Promise.resolve(),
       settings,
@@ -217,6 +221,7 @@ export class Checker {
   private takeFixes(checked: Checked, fixed: FixedFindings): void {
     const changed = fixed.findings.some((finding, index) => finding.message !== checked.findings[index]?.message);
     checked.findings = fixed.findings;
+    checked.fixAll = fixed.fixAll;
     checked.fixesReady = true;
     if (changed) this.publish(checked);
   }

@@ -15,7 +15,7 @@ import type { Finding, Fix } from '../findings.js';
 import type { Checked } from './checking.js';
 import type { FeatureContext } from './context.js';
 import { isFindingReference, SOURCE, type FindingReference } from './diagnostics.js';
-import { rangesOverlap, toLspRange } from './positions.js';
+import { toLspRange } from './positions.js';
 import { forEachStatement } from './syntax.js';
 import { uriKey } from './workspace.js';
 
@@ -191,27 +191,16 @@ function elementLineAt(context: FeatureContext, document: TextDocument, isAnalys
   return found;
 }
 
-/** Every preferred fix of the document's findings, leaving out any that would overlap one already taken. */
+/**
+ * Every preferred fix of the document's findings at once, as the analysis verified them
+ * together (server/src/fixes/combined.ts): none that overlaps another, and none that a
+ * re-check of the combination turned down.
+ */
 function fixAllAction(context: FeatureContext, document: TextDocument, options: CodeActionOptions): CodeAction | undefined {
   const checked = context.current(document);
-  if (!checked || !isCurrent(context, checked)) return undefined;
-  const taken: (LspTextEdit & { uri: string })[] = [];
-  let fixes = 0;
-  for (const finding of checked.findings) {
-    if (checked.settings.core.severities[finding.rule] === 'off') continue;
-    const fix: Fix | undefined = finding.fixes.find((candidate) => candidate.preferred);
-    if (!fix) continue;
-    const edits = fix.edits.map(toLspEdit);
-    const clashes = edits.some((edit) => taken.some((other) => uriKey(other.uri) === uriKey(edit.uri) && (rangesOverlap(other.range, edit.range) || samePoint(other, edit))));
-    if (clashes) continue;
-    taken.push(...edits);
-    fixes += 1;
-  }
+  if (!checked || !checked.fixAll || !isCurrent(context, checked)) return undefined;
+  const fixes = checked.fixAll.titles.length;
   if (fixes === 0) return undefined;
-  return { title: `Apply all ${fixes} preferred pnlint fix${fixes === 1 ? '' : 'es'}`, kind: FIX_ALL_KIND, edit: workspaceEdit(context, taken, options) };
+  return { title: `Apply all ${fixes} preferred pnlint fix${fixes === 1 ? '' : 'es'}`, kind: FIX_ALL_KIND, edit: workspaceEdit(context, checked.fixAll.edits.map(toLspEdit), options) };
 }
 
-/** Two insertions at the same point would land in an unspecified order: treat them as a clash. */
-function samePoint(a: LspTextEdit, b: LspTextEdit): boolean {
-  return a.range.start.line === b.range.start.line && a.range.start.character === b.range.start.character;
-}

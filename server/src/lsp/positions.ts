@@ -1,7 +1,7 @@
 // Conversions between the grammar's spans and ranges (0-based line, UTF-16 column,
 // offset) and the protocol's, and the few range tests the features share.
 import type { LineIndex, Range, Span } from '@pnlint/grammar';
-import type { Position as LspPosition, Range as LspRange } from 'vscode-languageserver';
+import type { Range as LspRange } from 'vscode-languageserver';
 
 export function toLspRange(range: Range): LspRange {
   return {
@@ -20,7 +20,3 @@ export function spanContains(span: Span, offset: number): boolean {
   return span.start <= offset && offset <= span.end;
 }
 
-export function rangesOverlap(a: LspRange, b: LspRange): boolean {
-  const before = (p: LspPosition, q: LspPosition) => p.line < q.line || (p.line === q.line && p.character <= q.character);
-  return !(before(a.end, b.start) || before(b.end, a.start));
-}

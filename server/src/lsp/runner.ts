@@ -12,6 +12,7 @@ import { fileURLToPath } from 'node:url';
 import type { CancellationToken } from 'vscode-languageserver';
 import type { DiodeReport } from '../checks/index.js';
 import type { Finding } from '../findings.js';
+import type { CombinedFixes } from '../fixes/combined.js';
 import type { Settings } from '../settings.js';
 
 export interface OpenDocumentText {
@@ -49,6 +50,8 @@ export interface RunResult {
 /** The second phase of a run: the same findings, in the same order, with their verified fixes. */
 export interface FixedFindings {
   findings: Finding[];
+  /** Their preferred fixes that passed a re-check applied together ("fix all"). */
+  fixAll: CombinedFixes | undefined;
   milliseconds: number;
 }
 
