@@ -56,7 +56,7 @@ export function analyze(input: AnalysisInput): Analysis {
   const config = read?.config;
 
   const circuit = elaborate(input.uri, input.text, input.files, elaborationOptions(input));
-  const syntax = parse(input.text);
+  const syntax = circuit.syntax?.get(input.uri) ?? parse(input.text);
 
   let check: CheckResult | undefined;
   let complete = true;

@@ -56,7 +56,7 @@ export class SourceFiles {
     let file = this.indexed.get(uri);
     if (!file) {
       const text = this.text(uri) ?? '';
-      const parsed = parse(text, { isInclude: uri !== this.circuit.uri });
+      const parsed = this.circuit.syntax?.get(uri) ?? parse(text, { isInclude: uri !== this.circuit.uri });
       const elementsByOffset = new Map<number, ElementStatement>();
       forEachStatement(parsed.statements, (statement) => {
         // The first statement at an offset, as a search from the top would find it.

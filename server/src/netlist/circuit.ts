@@ -1,7 +1,7 @@
 // The elaborated circuit: subcircuits flattened, parameters evaluated, includes
 // resolved. This is what the solver and the checks read. Every element keeps
 // where it was written, so that findings point at the user's own lines.
-import type { Range, Severity } from '@pnlint/grammar';
+import type { ParseResult, Range, Severity } from '@pnlint/grammar';
 
 /** A place in a file. `uri` is whatever the caller's file reader understands (a path or a URI). */
 export interface SourceLocation {
@@ -179,6 +179,8 @@ export interface Circuit {
   parameters?: Map<string, number>;
   /** Every file read, with its text, so that fixes can edit and re-elaborate. */
   files: Map<string, string>;
+  /** The syntax tree of each file read, as elaboration parsed it (the others need not parse it again). */
+  syntax?: Map<string, ParseResult>;
   diagnostics: NetlistDiagnostic[];
 }
 

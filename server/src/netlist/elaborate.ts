@@ -161,6 +161,7 @@ class Elaborator {
       directives: this.directives,
       parameters: top.params.values(),
       files: this.files,
+      syntax: new Map([...this.parsed].filter((entry): entry is [string, ParseResult] => entry[1] !== undefined)),
       diagnostics: this.sink.diagnostics,
     };
   }
