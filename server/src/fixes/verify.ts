@@ -218,26 +218,30 @@ function withoutNumbers(message: string): string {
   return message.replace(NUMBER_WITH_PREFIX, '#');
 }
 
+/** How grave a severity is: a finding that comes back graver than it was is new. */
+const GRAVITY: Readonly<Record<Finding['severity'], number>> = { info: 0, warning: 1, error: 2 };
+
 /**
  * The original check's findings, for telling what a re-check adds. A finding about an element
- * is known when the original had one of the same rule and severity about that element, or
- * naming it among the elements of its kind that it is about (a finding about a group of LEDs
- * is filed under the first of them, which a fix may take out of the group). Other findings
+ * is known when the original had one of the same rule about that element, or naming it among
+ * the elements of its kind that it is about (a finding about a group of LEDs is filed under the
+ * first of them, which a fix may take out of the group), at the same severity or a graver one:
+ * a problem that a fix makes milder (an error that is now a warning) is not new. Other findings
  * and netlist diagnostics are counted by their key.
  */
 class KnownFindings {
-  /** By `rule|severity`: every element the original's findings of that kind are about or name in their group. */
-  private readonly known = new Map<string, Set<string>>();
+  /** By rule: every element the original's findings of that rule are about or name in their group, with the gravest severity. */
+  private readonly known = new Map<string, Map<string, number>>();
   private readonly counts: Map<string, number>;
 
   constructor(findings: readonly Finding[], circuit: Circuit) {
     const names = elementNames(circuit);
     for (const finding of findings) {
       if (finding.element === undefined) continue;
-      const key = `${finding.rule}|${finding.severity}`;
-      let known = this.known.get(key);
-      if (!known) this.known.set(key, (known = new Set()));
-      for (const element of groupOf(finding, names)) known.add(element);
+      let known = this.known.get(finding.rule);
+      if (!known) this.known.set(finding.rule, (known = new Map()));
+      const gravity = GRAVITY[finding.severity];
+      for (const element of groupOf(finding, names)) known.set(element, Math.max(gravity, known.get(element) ?? -1));
     }
     this.counts = countKeys(findings, circuit.diagnostics);
   }
@@ -250,7 +254,8 @@ class KnownFindings {
     const aboutElements: Finding[] = [];
     for (const finding of findings) {
       if (finding.element === undefined) continue;
-      if (!this.known.get(`${finding.rule}|${finding.severity}`)?.has(finding.element.toLowerCase())) aboutElements.push(finding);
+      const known = this.known.get(finding.rule)?.get(finding.element.toLowerCase());
+      if (known === undefined || GRAVITY[finding.severity] > known) aboutElements.push(finding);
     }
     let otherwise = false;
     for (const [key, count] of countKeys(findings, circuit.diagnostics)) {
