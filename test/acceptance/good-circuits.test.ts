@@ -62,6 +62,24 @@ const COMPARED = [
   'g18-subcircuit-channels.cir',
   'g19-params-include.cir',
   'g23-probed-clamps.cir',
+  'g24-led-channel-params.cir',
+  'g27-led-diode-sink.cir',
+  'g28-led-string-sink-24v.cir',
+  'g29-zener-shunt-load.cir',
+  'g30-schottky-polarity.cir',
+  'g31-pmos-oring.cir',
+  'g33-totem-pole.cir',
+  'g34-temp-sense.cir',
+  'g35-opto-input.cir',
+  'g36-pin-resistance.cir',
+  'g37-kicad-export.cir',
+  'g38-gate-zeners.cir',
+  'g40-charlieplex.cir',
+  'g41-zener-led-threshold.cir',
+  'g43-zener-snubber.cir',
+  'g44-fuse-resistor.cir',
+  'g45-precision-rectifier.cir',
+  'g46-global-rail-area.cir',
 ];
 
 let report: CheckReport;
@@ -217,5 +235,104 @@ describe('the pieces of a real netlist all reach the checks', () => {
     const nominal = op.corners[0];
     const drop = nominal.nodes.rail - nominal.nodes.chg;
     expect(nominal.branches.RCHG).toBeCloseTo(drop / 375, 9);
+  });
+});
+
+/** DC-only good circuits that read their models from files beside them, with those files (relative path as the netlist writes it). */
+const COMPARED_WITH_INCLUDES: Record<string, string[]> = {
+  'g25-lib-sections.cir': ['lib/parts.lib'],
+  'g26-export-probes.cir': ['lib/export-models.inc'],
+};
+
+describe.runIf(ngspice)('pnlint op agrees with ngspice 39 where the models come from .lib sections and .include files', () => {
+  const included = new Map<string, OperatingPointJson>();
+  beforeAll(async () => {
+    const files = Object.keys(COMPARED_WITH_INCLUDES);
+    const runs = await pnlintAll(files.map((file) => ({ args: ['op', `good/${file}`, '--format', 'json'], cwd: CIRCUITS })));
+    runs.forEach((run, index) => {
+      if (run.code !== 0) throw new Error(`pnlint op ${files[index]} exited ${run.code}: ${run.stderr}`);
+      included.set(files[index], JSON.parse(run.stdout) as OperatingPointJson);
+    });
+  }, SETUP_TIMEOUT_MILLISECONDS);
+
+  it.each(Object.keys(COMPARED_WITH_INCLUDES))('%s: every node voltage and every source current', (file) => {
+    const nominal = included.get(file)!.corners.find((corner) => corner.name === 'nominal')!;
+    expect(nominal.solved).toBe(true);
+    const includes = Object.fromEntries(COMPARED_WITH_INCLUDES[file].map((path) => [path, readCircuit(`good/${path}`)]));
+    const reference = runNgspiceOperatingPoint(readCircuit(`good/${file}`), { includes });
+    expect(reference.ok, reference.failure).toBe(true);
+    const nodes = Object.entries(nominal.nodes).filter(([name]) => name !== '0');
+    expect(nodes.length).toBeGreaterThan(0);
+    for (const [name, voltage] of nodes) {
+      const expected = reference.values.get(ngspiceNodeName(name));
+      expect(expected, `ngspice has no node ${name}`).toBeDefined();
+      expect(near(voltage, expected!, VOLTAGE_RELATIVE, VOLTAGE_ABSOLUTE), `${file} node ${name}: pnlint ${voltage}, ngspice ${expected}`).toBe(true);
+    }
+    for (const [element, current] of Object.entries(nominal.branches)) {
+      if (!/^[VL]/i.test(element.split('.').pop()!)) continue;
+      const expected = reference.values.get(ngspiceBranchName(element));
+      expect(expected, `ngspice has no branch ${element}`).toBeDefined();
+      expect(near(current, expected!, CURRENT_RELATIVE, CURRENT_ABSOLUTE), `${file} ${element}: pnlint ${current}, ngspice ${expected}`).toBe(true);
+    }
+  });
+
+  it('g25 and g26: the section and include models are found (no unknown-model), and the zener ratings written in the library apply', () => {
+    for (const file of Object.keys(COMPARED_WITH_INCLUDES)) {
+      expect(report.byFile.get(file)!.filter((f) => f.rule === 'unknown-model' || f.rule === 'netlist')).toEqual([]);
+    }
+    expect(included.get('g25-lib-sections.cir')!.corners[0].diodes.DZ.kind).toBe('zener');
+    expect(included.get('g26-export-probes.cir')!.corners[0].diodes.D_RECT_IN.kind).toBe('rectifier');
+  });
+});
+
+describe.runIf(ngspice)('the designs hold at the supply corners, as ngspice 39 solves them', () => {
+  it('g24: seven LED channels, nested and with params: on the instance line, each under its own hierarchical name', () => {
+    const op = operatingPoint('good/g24-led-channel-params.cir');
+    expect(Object.keys(op.corners[0].diodes).sort()).toEqual(['X1.D1', 'X2.D1', 'X3.D1', 'XP1.XA.D1', 'XP1.XB.D1', 'XP2.XA.D1', 'XP2.XB.D1']);
+    // ngspice 39 at 12.6 V (12 V + 5 %): the brightest channel (680 ohm) stays under the 20 mA rule of thumb (common practice).
+    const nodes = runNgspiceOperatingPoint(readCircuit('good/g24-led-channel-params.cir').replace('VRAIL rail 0 DC {vrail}', 'VRAIL rail 0 DC 12.6'), {
+      vectors: ['v(x1.anode)', 'v(xp2.xb.anode)'],
+    }).values;
+    expect((12.6 - nodes.get('v(x1.anode)')!) / 680).toBeLessThan(LED_RULE_OF_THUMB_CURRENT);
+    // XP2's second channel gets rsecond = {2*470} = 940 ohm (hand arithmetic): its current is the drop over 940 ohm.
+    const xp2 = op.corners.find((corner) => corner.name === 'nominal')!;
+    expect(xp2.branches['XP2.XB.RLED']).toBeCloseTo((xp2.nodes.rail - xp2.nodes['XP2.XB.anode']) / 940, 9);
+  });
+
+  it('g28: the sink holds the five-LED string at the same current from 22.8 V to 25.2 V', () => {
+    const op = operatingPoint('good/g28-led-string-sink-24v.cir');
+    const netlist = readCircuit('good/g28-led-string-sink-24v.cir');
+    const low = referenceDiodeCurrent(netlist, 'D1', { V24: 'V24 v24 0 DC 22.8' });
+    const high = referenceDiodeCurrent(netlist, 'D1', { V24: 'V24 v24 0 DC 25.2' });
+    // A current sink: within 2 % over a 10 % supply swing (ours; the transistor's Early voltage is 80 V), under 20 mA (rule of thumb).
+    expect(near(low, high, 0.02)).toBe(true);
+    expect(high).toBeLessThan(LED_RULE_OF_THUMB_CURRENT);
+    for (const [corner, expected] of [['V24 min', low], ['V24 max', high]] as const) {
+      const solved = op.corners.find((c) => c.name === corner)!;
+      expect(near(solved.diodes.D1.current, expected, 1e-5), `${corner}: pnlint ${solved.diodes.D1.current}, ngspice ${expected}`).toBe(true);
+    }
+  });
+
+  it('g29: the 5.6 V shunt regulator keeps its zener above IZK 5 mA at 10.8 V, inside the textbook window', () => {
+    const op = operatingPoint('good/g29-zener-shunt-load.cir');
+    const netlist = readCircuit('good/g29-zener-shunt-load.cir');
+    // Textbook window: Rmax = (10.8 − 5.6)/(5 mA + 5.6 V/270 Ω) = 202 Ω, Rmin = (13.2 − 5.6)/(1 W/5.6 V) = 42.6 Ω; RSH is 180 Ω.
+    expect((10.8 - 5.6) / (5e-3 + 5.6 / 270)).toBeGreaterThan(180);
+    expect((13.2 - 5.6) / (1 / 5.6)).toBeLessThan(180);
+    for (const [corner, volts] of [['V12 min', 10.8], ['V12 max', 13.2]] as const) {
+      // The zener line is anode first (DSH 0 reg): its reverse current is minus the probe's reading (ngspice 39).
+      const reverse = -referenceDiodeCurrent(netlist, 'DSH', { V12: `V12 v12 0 DC ${volts}` });
+      expect(reverse).toBeGreaterThan(5e-3);
+      const solved = op.corners.find((c) => c.name === corner)!;
+      expect(near(-solved.diodes.DSH.current, reverse, 1e-5)).toBe(true);
+    }
+  });
+
+  it('g40: in the charlieplexed state only LED AB lights; its reversed partner is not called reversed', () => {
+    const netlist = readCircuit('good/g40-charlieplex.cir');
+    // ngspice 39: AB carries about 10 mA, every other LED under a microampere.
+    expect(referenceDiodeCurrent(netlist, 'DAB')).toBeGreaterThan(5e-3);
+    for (const other of ['DBA', 'DBC', 'DCB', 'DAC', 'DCA']) expect(Math.abs(referenceDiodeCurrent(netlist, other))).toBeLessThan(1e-6);
+    expect(report.byFile.get('g40-charlieplex.cir')!.filter((f) => f.rule === 'reversed-diode')).toEqual([]);
   });
 });
