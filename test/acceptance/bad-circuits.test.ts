@@ -12,6 +12,7 @@ import {
   LED_RULE_OF_THUMB_CURRENT,
   SETUP_TIMEOUT_MILLISECONDS,
   checkJson,
+  isE24,
   near,
   quantityAfter,
   readCircuit,
@@ -453,5 +454,114 @@ describe('the design-aid caution at hazardous voltages', () => {
     expect(found.range.start.line).toBe(2);
     expect(found.message).toMatch(/170 V/);
     expect(found.message).toMatch(/design aid, not a safety approval/);
+  });
+});
+
+describe('reverse-overvoltage on a centre-tapped full-wave rectifier (b32)', () => {
+  it('each of the two 30 V diodes sees about 2·Vm', () => {
+    // Standard textbook result (Sedra & Smith): about 2·Vm across each diode of a centre-tapped
+    // full wave, less the conducting diode's drop; Vm = 17 V + 5 % at the high corner.
+    const peak = 17 * HIGH;
+    for (const [element, line] of [['DA', 5], ['DB', 6]] as const) {
+      const found = finding('b32-centre-tap-low-vrrm.cir', 'reverse-overvoltage', element);
+      expectAt(found, 'error', line, element);
+      const reverse = quantityAfter(found.message, 'reaches', 'V');
+      expect(reverse).toBeGreaterThan(2 * peak - 1);
+      expect(reverse).toBeLessThanOrEqual(2 * peak);
+      expect(found.message).toMatch(/VRRM 30 V from directive on line 7/);
+    }
+  });
+});
+
+describe.runIf(ngspice)('faults written the way boards are drawn', () => {
+  it('an LED straight on a 3.3 V logic pin (b33): unlimited, and the inserted resistor brings it under 20 mA', () => {
+    const file = 'b33-led-on-logic-pin.cir';
+    const netlist = readCircuit(`bad/${file}`);
+    const found = finding(file, 'led-current-unlimited');
+    expectAt(found, 'error', 4, 'DKEY');
+    expect(found.message).toMatch(/nothing in its loop limits the current/);
+    // ngspice 39 at the high corner (3.3 V + 5 %), the LED alone on the pin.
+    expect(near(quantityAfter(found.message, 'carries', 'A'), referenceDiodeCurrent(netlist, 'DKEY', { VPIN: `VPIN pin 0 DC ${3.3 * HIGH}` }))).toBe(true);
+    const fix = found.fixes.find((f) => f.preferred)!;
+    const resistance = quantityAfter(fix.title, '^Insert', 'Ω');
+    expect(isE24(resistance)).toBe(true); // IEC 60063
+    // The fix's own claim, checked with ngspice 39: the resistor inserted, at the high corner.
+    const fixed = withLines(netlist, { DKEY: `RFIX pin lim ${resistance}\nDKEY lim 0 LEDRED`, VPIN: `VPIN pin 0 DC ${3.3 * HIGH}` });
+    const current = referenceDiodeCurrent(fixed, 'DKEY');
+    expect(current).toBeLessThan(LED_RULE_OF_THUMB_CURRENT);
+    expect(near(quantityAfter(fix.title, 'LED', 'A'), current)).toBe(true);
+  });
+
+  it('a 5.6 V shunt regulator whose load grew to 33 mA starves at 10.8 V (b34), and says no value of RSH fits a half-watt part', () => {
+    const file = 'b34-zener-load-grown.cir';
+    const netlist = readCircuit(`bad/${file}`);
+    const found = finding(file, 'zener-underbiased');
+    expectAt(found, 'warning', 7, 'DSH');
+    expect(found.message).toMatch(/V12 = 10\.8 V \(min corner\)/);
+    // ngspice 39 at 10.8 V (12 V − 10 %, the supply directive): out of regulation, the node follows the divider.
+    const atLow = withLines(netlist, { V12: 'V12 v12 0 DC 10.8' });
+    const reverse = -referenceDiodeCurrent(atLow, 'DSH'); // written anode first: minus the probe's reading
+    expect(reverse).toBeLessThan(5e-3);
+    expect(near(quantityAfter(found.message, 'carries only', 'A'), reverse, 0.02)).toBe(true);
+    expect(near(quantityAfter(found.message, 'the model gives', 'V'), referenceSolve(atLow, ['v(reg)']).get('v(reg)')!)).toBe(true);
+    // Textbook window: Rmax = (10.8 − 5.6)/(5 mA + 5.6/270 + 5.6/470) = 138 Ω, Rmin = (13.2 − 5.6)/(1 W/5.6 V) = 42.6 Ω;
+    // 2 % for the model's knee voltage against the nominal VZ, as in b11.
+    expect(near(quantityAfter(found.message, 'window \\(', 'Ω'), (13.2 - 5.6) / (1 / 5.6), 0.02)).toBe(true);
+    expect(near(quantityAfter(found.message, 'window \\([\\d.]+ Ω to', 'Ω'), (10.8 - 5.6) / (5e-3 + 5.6 / 270 + 5.6 / 470), 0.02)).toBe(true);
+    // Even the window's top, 138 Ω, drops (13.2 − 5.6)² / 138 = 0.42 W at 13.2 V: over 70 % of RSH's 0.5 W directive (derating, common practice).
+    expect((13.2 - 5.6) ** 2 / 138).toBeGreaterThan(0.7 * 0.5);
+    expect(found.message).toMatch(/500 mW rating/);
+    expect(found.fixes.filter((f) => f.preferred)).toEqual([]);
+  });
+
+  it('an LED drawn backwards inside a subcircuit used twice (b35): reported for each instance at the subcircuit line', () => {
+    const file = 'b35-reversed-led-subckt-twice.cir';
+    // ngspice 39, the LED turned around at 12.6 V: Ohm's law on its 1k resistor.
+    const flipped = withLines(readCircuit(`bad/${file}`), { DLAMP: 'DLAMP anode 0 LEDAMB', V12: `V12 v12 0 DC ${12 * HIGH}` });
+    const anode = referenceSolve(flipped, ['v(xfloor1.anode)']).get('v(xfloor1.anode)')!;
+    for (const instance of ['XFLOOR1', 'XFLOOR2']) {
+      const found = finding(file, 'reversed-diode', `${instance}.DLAMP`);
+      expectAt(found, 'error', 6, `${instance}.DLAMP`);
+      expect(near(quantityAfter(found.message, 'would carry', 'A'), (12 * HIGH - anode) / 1000)).toBe(true);
+      expect(found.fixes.find((f) => f.preferred)!.title).toMatch(new RegExp(`^Turn ${instance}\\.DLAMP around`));
+    }
+  });
+
+  it('a shunt Schottky rated 20 V across a 24 V input (b36): its model has no BV, the directive’s rating applies', () => {
+    const file = 'b36-schottky-shunt-low-vrrm.cir';
+    const found = finding(file, 'reverse-overvoltage');
+    expectAt(found, 'error', 5, 'DPOL');
+    expect(found.message).toMatch(/VRRM 20 V from directive on line 6/);
+    // ngspice 39 at 25.2 V (24 V + 5 %): the input node less the fuse resistor's drop.
+    const node = referenceSolve(withLines(readCircuit(`bad/${file}`), { V24: `V24 v24 0 DC ${24 * HIGH}` }), ['v(vin)']).get('v(vin)')!;
+    expect(near(quantityAfter(found.message, 'reaches', 'V'), node)).toBe(true);
+  });
+
+  it('an LED on a 5 V PWM output through 47 ohm (b37): judged at the pulse’s high level', () => {
+    const file = 'b37-pwm-led-overcurrent.cir';
+    const found = finding(file, 'led-current-unlimited');
+    expectAt(found, 'error', 5, 'DBL');
+    expect(found.message).toMatch(/PULSE pulsed level/);
+    // ngspice 39 with the source held at its pulsed level + 5 % (a quasi-static view of the high half of each period).
+    const current = referenceDiodeCurrent(readCircuit(`bad/${file}`), 'DBL', { VPWM: `VPWM pwm 0 DC ${5 * HIGH}` });
+    expect(current).toBeGreaterThan(LED_RULE_OF_THUMB_CURRENT);
+    expect(near(quantityAfter(found.message, 'carries', 'A'), current)).toBe(true);
+  });
+
+  it('a lamp resistor sized for a 12 V rail, not for the crest of its 2 V ripple (b38)', () => {
+    const file = 'b38-ripple-crest-led.cir';
+    const netlist = withLines(readCircuit(`bad/${file}`), { VRIP: `VRIP rail 0 DC ${(12 + 2) * HIGH}` });
+    // ngspice 39 at the crest, offset plus amplitude + 5 % (14.7 V).
+    const found = finding(file, 'led-current-unlimited');
+    expectAt(found, 'error', 5, 'DL');
+    const current = referenceDiodeCurrent(netlist, 'DL');
+    expect(current).toBeGreaterThan(LED_RULE_OF_THUMB_CURRENT);
+    expect(near(quantityAfter(found.message, 'carries', 'A'), current)).toBe(true);
+    const power = finding(file, 'overdissipation', 'RL');
+    expectAt(power, 'error', 4, 'RL');
+    const nodes = referenceSolve(netlist, ['v(rail)', 'v(anode)']);
+    const drop = nodes.get('v(rail)')! - nodes.get('v(anode)')!;
+    expect(near(quantityAfter(power.message, 'dissipates', 'W'), (drop * drop) / 560)).toBe(true); // P = V²/R
+    expect(power.message).toMatch(/250 mW/);
   });
 });
