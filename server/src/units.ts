@@ -28,7 +28,7 @@ export function formatQuantity(value: number, unit: string, digits: number = SIG
   if (!Number.isFinite(value)) return `${Number.isNaN(value) ? 'not a number' : value > 0 ? '∞' : '−∞'}${space}${unit}`;
   if (value === 0) return `0${space}${unit}`;
   const sign = value < 0 ? '−' : '';
-  const magnitude = Math.abs(value);
+  const magnitude = asWritten(Math.abs(value));
   // Round first, so that 999.96 becomes 1 k rather than 1000.
   const rounded = Number(magnitude.toPrecision(digits));
   const exponent = Math.floor(Math.log10(rounded) / 3) * 3;
@@ -36,6 +36,15 @@ export function formatQuantity(value: number, unit: string, digits: number = SIG
   if (!prefix) return `${sign}${trimZeros(rounded.toExponential(digits - 1))}${space}${unit}`;
   const scaled = rounded / 10 ** exponent;
   return `${sign}${trimZeros(scaled.toPrecision(digits))}${space}${prefix.symbol}${unit}`;
+}
+
+/**
+ * A value nudged up by a few units in the last place. A decimal such as 3.135 (3.3 V less 5 %)
+ * is held in binary as 3.13499999…, which would round to 3.13; a person rounds the decimal
+ * half up, to 3.14. The nudge is far below any digit shown, so it changes nothing else.
+ */
+function asWritten(magnitude: number): number {
+  return magnitude * (1 + 4 * Number.EPSILON);
 }
 
 /** A fraction as a percentage: 0.8 → `80 %`, 0.0525 → `5.25 %`. */

@@ -18,6 +18,13 @@ describe('formatQuantity', () => {
     expect(formatQuantity(1e-12, 'A')).toBe('1 pA');
     expect(formatQuantity(-0.0125, 'V')).toBe('−12.5 mV');
   });
+  it('rounds a decimal half up as a person does, whatever its binary form', () => {
+    // 3.3 V less 5 % is 3.135 V (arithmetic), held in binary as 3.13499…: read as 3.14 V.
+    expect(formatQuantity(3.3 * 0.95, 'V')).toBe('3.14 V');
+    expect(formatQuantity(-3.3 * 0.95, 'V')).toBe('−3.14 V');
+    // Just below the half stays below it.
+    expect(formatQuantity(3.1349, 'V')).toBe('3.13 V');
+  });
   it('rounds before choosing the prefix, so 999.96 is 1 k, not 1000', () => {
     expect(formatQuantity(999.96, 'Ω')).toBe('1 kΩ');
     expect(formatQuantity(0.99996, 'A')).toBe('1 A');
