@@ -180,6 +180,8 @@ describe.runIf(ngspice)('reversed-diode: clamps and freewheel diodes that conduc
     expectAt(found, 'error', 8, 'DFLY');
     expect(found.message).toMatch(/across the coil LCOIL/);
     expect(found.message).toMatch(/once QVALVE switches on/);
+    // Turned around, with QVALVE off, it neither blocks nor carries anything worth a number (ngspice 39 below: idle).
+    expect(found.fixes.find((fix) => fix.preferred)?.title).toBe('Turn DFLY around (anode to coil_low, cathode to v24; it then idles)');
     // ngspice 39: idle as drawn; with QVALVE closed (a 0 V source collector to emitter) at 25.2 V, a supply short.
     expect(Math.abs(referenceDiodeCurrent(readCircuit(`bad/${file}`), 'DFLY'))).toBeLessThan(1e-6);
     const onState = referenceDiodeCurrent(readCircuit(`bad/${file}`), 'DFLY', {

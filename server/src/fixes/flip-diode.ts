@@ -10,6 +10,12 @@ import type { FixSession } from './verify.js';
 
 type FlipRequest = Extract<FixRequest, { kind: 'flip-diode' }>;
 
+/**
+ * Below this a diode neither blocks nor conducts anything worth naming (ours): a freewheel
+ * diode turned around, with its coil's transistor off, sits at a few nanovolts.
+ */
+const NEGLIGIBLE_VOLTAGE = 1e-3;
+
 /** The flip's edits, not yet re-checked; undefined when the diode's node words cannot be found. */
 export function flipDiodeCandidate(session: FixSession, request: FlipRequest, finding: Finding): FixCandidate | undefined {
   const diode = elementNamed(session.circuit, request.diode);
@@ -29,7 +35,9 @@ export function flipDiodeCandidate(session: FixSession, request: FlipRequest, fi
         ? ''
         : after.forwardCurrent >= CONDUCTION_THRESHOLD
           ? `; it then carries ${formatQuantity(after.forwardCurrent, 'A')}`
-          : `; it then blocks ${formatQuantity(after.reverseVoltage, 'V')}`;
+          : after.reverseVoltage >= NEGLIGIBLE_VOLTAGE
+            ? `; it then blocks ${formatQuantity(after.reverseVoltage, 'V')}`
+            : '; it then idles';
       return { title: `Turn ${diode.name} around (anode to ${cathode.text}, cathode to ${anode.text}${then})`, preferred: true, edits };
     },
   };
