@@ -80,6 +80,9 @@ const COMPARED = [
   'g44-fuse-resistor.cir',
   'g45-precision-rectifier.cir',
   'g46-global-rail-area.cir',
+  'g48-photodiode-dark.cir',
+  'g49-diode-and.cir',
+  'g50-varicap-bias.cir',
 ];
 
 let report: CheckReport;
