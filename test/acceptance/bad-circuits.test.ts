@@ -193,6 +193,22 @@ describe.runIf(ngspice)('reversed-diode: clamps and freewheel diodes that conduc
   });
 });
 
+describe.runIf(ngspice)('zener-forward: a gate clamp fitted forward', () => {
+  it('says why turning it around is not offered: turned around it would idle below its knee (b39)', () => {
+    const file = 'b39-gate-zener-forward.cir';
+    const found = finding(file, 'zener-forward');
+    expectAt(found, 'warning', 4, 'DGATE');
+    expect(found.message).toMatch(/Turning it around is not offered as a fix: the re-check then reports zener-underbiased for DGATE\./);
+    expect(found.fixes.filter((fix) => fix.preferred)).toEqual([]);
+    // ngspice 39, turned around, at the low corner (15 V − 5 %): under 1 mA, the knee current
+    // of a small zener (typical value, from memory), so a re-check reports it under-biased.
+    const turned = withLines(readCircuit(`bad/${file}`), { DGATE: 'DGATE 0 gate ZGATE', V15: `V15 v15 0 DC ${15 * LOW}` });
+    const reverse = -referenceDiodeCurrent(turned, 'DGATE');
+    expect(reverse).toBeGreaterThan(0);
+    expect(reverse).toBeLessThan(1e-3);
+  });
+});
+
 describe('reverse-overvoltage', () => {
   it('a half-wave rectifier with a filter capacitor sees about 2·Vm across a 30 V diode (b08)', () => {
     const found = finding('b08-half-wave-low-vrrm.cir', 'reverse-overvoltage');

@@ -42,10 +42,3 @@ export function flipDiodeCandidate(session: FixSession, request: FlipRequest, fi
     },
   };
 }
-
-export function flipDiodeFixes(session: FixSession, request: FlipRequest, finding: Finding): Fix[] {
-  const candidate = flipDiodeCandidate(session, request, finding);
-  if (!candidate) return [];
-  const verdict = session.verify(candidate.edits, finding);
-  return verdict.ok ? [candidate.titled(verdict.verified)] : [];
-}

@@ -46,10 +46,3 @@ export function guardDiodeCandidate(session: FixSession, request: GuardRequest, 
     },
   };
 }
-
-export function guardDiodeFixes(session: FixSession, request: GuardRequest, finding: Finding): Fix[] {
-  const candidate = guardDiodeCandidate(session, request, finding);
-  if (!candidate) return [];
-  const verdict = session.verify(candidate.edits, finding);
-  return verdict.ok ? [candidate.titled(verdict.verified)] : [];
-}

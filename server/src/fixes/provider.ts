@@ -9,12 +9,12 @@ import type { Circuit, FileReader } from '../netlist/circuit.js';
 import type { WorkspaceConfig } from '../config.js';
 import type { Finding, Fix } from '../findings.js';
 import type { Settings } from '../settings.js';
-import { flipDiodeCandidate, flipDiodeFixes } from './flip-diode.js';
-import { guardDiodeCandidate, guardDiodeFixes } from './guard-diode.js';
+import { flipDiodeCandidate } from './flip-diode.js';
+import { guardDiodeCandidate } from './guard-diode.js';
 import { ignoreFix, verifiedIgnore, verifiedIgnoreFixes } from './ignore.js';
 import { currentLimitFixes } from './series-resistor.js';
 import { verifyIndependent, type FixCandidate } from './together.js';
-import { FixSession, type FixOptions, type FixStatistics } from './verify.js';
+import { FixSession, type FixOptions, type FixStatistics, type Verified } from './verify.js';
 import { zenerWindowFixes } from './zener-resistor.js';
 
 /** Most urgent first. */
@@ -38,14 +38,30 @@ export function fixesForRequest(session: FixSession, request: FixRequest, findin
     case 'zener-window':
       return zenerWindowFixes(session, request, finding, plans);
     case 'flip-diode':
-      return { fixes: flipDiodeFixes(session, request, finding) };
-    case 'anti-parallel-diode':
-      return { fixes: guardDiodeFixes(session, request, finding) };
+    case 'anti-parallel-diode': {
+      const candidate = request.kind === 'flip-diode' ? flipDiodeCandidate(session, request, finding) : guardDiodeCandidate(session, request, finding);
+      if (!candidate) return { fixes: [] };
+      const verdict = session.verify(candidate.edits, finding);
+      if (verdict.ok) return { fixes: [candidate.titled(verdict.verified)] };
+      const note = verdict.reason === 'new-finding' && verdict.rechecked ? withheldNote(session, verdict.rechecked, request.kind) : undefined;
+      return note ? { fixes: [], note } : { fixes: [] };
+    }
     case 'ignore': {
       const fix = ignoreFix(session, finding, request.rule, request.element);
       return { fixes: fix && verifiedIgnore(session, fix, finding) ? [fix] : [] };
     }
   }
+}
+
+/**
+ * Why the obvious fix is not offered, when its re-check brought a new problem: the user would
+ * otherwise wonder why a reversed part gets no turn-around fix.
+ */
+function withheldNote(session: FixSession, rechecked: Verified, kind: 'flip-diode' | 'anti-parallel-diode'): string | undefined {
+  const found = session.newFindings(rechecked).aboutElements[0];
+  if (!found) return undefined;
+  const what = kind === 'flip-diode' ? 'Turning it around' : 'A guard diode across it';
+  return ` ${what} is not offered as a fix: the re-check then reports ${found.rule} for ${found.element}.`;
 }
 
 /** Exactly one preferred fix when any real fix exists: the first; the ignore fix never is. */
@@ -122,7 +138,7 @@ export function attachVerifiedFixes(
     // Flips and guard diodes first: built, then verified together where they cannot affect
     // each other (together.ts), a few re-checks for any number of them. Then the requests
     // whose values are searched re-check by re-check, one at a time.
-    const waiting: { slot: RequestedFixes; candidate: FixCandidate }[] = [];
+    const waiting: { slot: RequestedFixes; candidate: FixCandidate; kind: 'flip-diode' | 'anti-parallel-diode' }[] = [];
     const searched: { slot: RequestedFixes; request: FixRequest; finding: Finding }[] = [];
     for (const finding of check.findings) {
       if (finding.severity !== severity) continue;
@@ -132,7 +148,7 @@ export function attachVerifiedFixes(
         else if (!session.canVerify()) session.statistics.skipped++;
         else {
           const candidate = request.kind === 'flip-diode' ? flipDiodeCandidate(session, request, finding) : guardDiodeCandidate(session, request, finding);
-          if (candidate) waiting.push({ slot, candidate });
+          if (candidate) waiting.push({ slot, candidate, kind: request.kind });
         }
         return slot;
       });
@@ -142,9 +158,10 @@ export function attachVerifiedFixes(
       session,
       waiting.map((each) => each.candidate),
     );
-    waiting.forEach(({ slot, candidate }, index) => {
+    waiting.forEach(({ slot, candidate, kind }, index) => {
       const verdict = verdicts[index]!;
       if (verdict.ok) slot.fixes.push(candidate.titled(verdict.verified));
+      else if (verdict.reason === 'new-finding' && verdict.rechecked) slot.note = withheldNote(session, verdict.rechecked, kind);
     });
     for (const { slot, request, finding } of searched) Object.assign(slot, fixesForRequest(session, request, finding, check.cornerPlans));
   }
