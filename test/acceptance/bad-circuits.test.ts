@@ -174,6 +174,16 @@ describe.runIf(ngspice)('reversed-diode: clamps and freewheel diodes that conduc
     expect(near(quantityAfter(found.message, 'holding pin at', 'V'), referenceSolve(netlist, ['v(pin)']).get('v(pin)')!)).toBe(true);
   });
 
+  it('the diode of a diode plus resistor snubber turned around is driven forward through the resistor (b40)', () => {
+    const file = 'b40-rd-snubber-reversed.cir';
+    const found = finding(file, 'reversed-diode');
+    expectAt(found, 'error', 9, 'DSNUB');
+    expect(found.message).toMatch(/across the coil LSOL/);
+    // ngspice 39 at the high corner: about (25.2 V − VF) / 47 Ω through the snubber.
+    const current = referenceDiodeCurrent(readCircuit(`bad/${file}`), 'DSNUB', { V24: `V24 v24 0 DC ${24 * HIGH}`, VGATE: `VGATE gdrv 0 DC ${10 * HIGH}` });
+    expect(near(quantityAfter(found.message, 'carries', 'A'), current)).toBe(true);
+  });
+
   it('a freewheel diode fitted anode to the 24 V supply across a coil whose transistor is off (b30)', () => {
     const file = 'b30-freewheel-reversed-switch-off.cir';
     const found = finding(file, 'reversed-diode');

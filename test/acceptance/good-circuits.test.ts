@@ -62,6 +62,7 @@ const COMPARED = [
   'g18-subcircuit-channels.cir',
   'g19-params-include.cir',
   'g23-probed-clamps.cir',
+  'g51-rd-snubber.cir',
   'g24-led-channel-params.cir',
   'g27-led-diode-sink.cir',
   'g28-led-string-sink-24v.cir',

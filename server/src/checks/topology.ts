@@ -12,8 +12,8 @@ export interface Topology {
    * source ties to ground, or to another rail (a stacked supply, an ammeter in a supply lead).
    */
   rails: Set<string>;
-  /** The end nodes of each inductor with its series chain, for freewheel detection. */
-  inductorSpans: [string, string][];
+  /** Each inductor with the end nodes of its series chain, for freewheel detection. */
+  inductorSpans: { coil: Element; ends: [string, string] }[];
 }
 
 /** The terminals of an element that carry DC current. */
@@ -142,29 +142,37 @@ export function seriesResistors(topology: Topology, element: Element): Resistor[
 }
 
 /**
- * True when the element's two nodes are bridged by an inductor, alone or in a series
- * chain (a coil with its winding resistance): the freewheel position.
+ * The inductor that bridges the element, alone or with what is in series with it (a snubber
+ * resistor), the coil alone or in a series chain (with its winding resistance): the freewheel
+ * position. Undefined when there is none.
  */
+export function inductorBridging(topology: Topology, element: Element): Element | undefined {
+  const candidates = [chainEnds(topology, element), element.nodes.slice(0, 2) as [string, string]];
+  for (const [first, second] of candidates) {
+    const found = topology.inductorSpans.find(({ ends }) => (ends[0] === first && ends[1] === second) || (ends[0] === second && ends[1] === first));
+    if (found) return found.coil;
+  }
+  return undefined;
+}
+
 export function bridgesInductor(topology: Topology, element: Element): boolean {
-  const [first, second] = element.nodes;
-  return topology.inductorSpans.some((span) => (span[0] === first && span[1] === second) || (span[0] === second && span[1] === first));
+  return inductorBridging(topology, element) !== undefined;
+}
+
+/** The two end nodes of an element's series chain: the element with whatever is in series with it on either side. */
+function chainEnds(topology: Topology, element: Element): [string, string] {
+  const [first, second] = element.nodes.slice(0, 2).map((node) => {
+    let end = node;
+    for (const next of seriesChain(topology, element, node)) end = otherNode(next, end) ?? end;
+    return end;
+  });
+  return [first!, second!];
 }
 
 /** The two end nodes of each inductor's series chain (the coil with whatever is in series with it). */
-function inductorSpans(connections: Map<string, Element[]>, rails: Set<string>, elements: readonly Element[]): [string, string][] {
+function inductorSpans(connections: Map<string, Element[]>, rails: Set<string>, elements: readonly Element[]): Topology['inductorSpans'] {
   const partial: Topology = { connections, rails, inductorSpans: [] };
-  const spans: [string, string][] = [];
-  for (const element of elements) {
-    if (element.type !== 'L') continue;
-    const ends = element.nodes.slice(0, 2).map((node) => {
-      const chain = seriesChain(partial, element, node);
-      let end = node;
-      for (const next of chain) end = otherNode(next, end) ?? end;
-      return end;
-    });
-    spans.push([ends[0]!, ends[1]!]);
-  }
-  return spans;
+  return elements.filter((element) => element.type === 'L').map((coil) => ({ coil, ends: chainEnds(partial, coil) }));
 }
 
 /**

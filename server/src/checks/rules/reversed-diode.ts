@@ -12,7 +12,7 @@ import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext, type CheckedDiode } from '../context.js';
 import { makeFinding } from '../finding.js';
 import { unusedName } from '../regions.js';
-import { bridgesInductor, currentNodes, joinedAt, resistivePathEnd } from '../topology.js';
+import { bridgesInductor, inductorBridging, joinedAt, resistivePathEnd } from '../topology.js';
 import {
   CONDUCTION_THRESHOLD,
   forwardCurrent,
@@ -354,6 +354,5 @@ function hasConductingPartner(context: CheckContext, partners: ConductingPartner
 }
 
 function inductorAcross(context: CheckContext, diode: CheckedDiode) {
-  const nodes = new Set(diode.element.nodes);
-  return context.circuit.elements.find((element) => element.type === 'L' && currentNodes(element).some((node) => nodes.has(node)));
+  return inductorBridging(context.topology, diode.element);
 }
