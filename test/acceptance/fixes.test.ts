@@ -48,6 +48,7 @@ const FIXABLE: Record<string, { rule: string; element: string }> = {
   'b30-freewheel-reversed-switch-off.cir': { rule: 'reversed-diode', element: 'DFLY' },
   'b31-probed-pin-clamp-reversed.cir': { rule: 'reversed-diode', element: 'DUP' },
   'b40-rd-snubber-reversed.cir': { rule: 'reversed-diode', element: 'DSNUB' },
+  'b41-infrared-led-on-pin.cir': { rule: 'led-current-unlimited', element: 'DOPTO' },
   'b33-led-on-logic-pin.cir': { rule: 'led-current-unlimited', element: 'DKEY' },
   'b35-reversed-led-subckt-twice.cir': { rule: 'reversed-diode', element: 'XFLOOR1.DLAMP' },
   'b37-pwm-led-overcurrent.cir': { rule: 'led-current-unlimited', element: 'DBL' },

@@ -1,5 +1,5 @@
 // Classification from the model (product.md): forward voltage at a few mA above about
-// 1.5 V is an LED, below about 0.45 V a Schottky; a BV of tens of volts or less with
+// 1 V is an LED (infrared emitters drop about 1.1–1.4 V), below about 0.45 V a Schottky; a BV of tens of volts or less with
 // reverse use suggests a zener; then the model's name. Forward voltages come from ngspice 39
 // forcing 5 mA through the model, and sit where the trade expects them (about 0.7 V
 // silicon, about 0.4 V Schottky, above 2 V for most LEDs: common practice, no source).
@@ -21,6 +21,14 @@ describe.runIf(ngspiceRuns)('classification', () => {
     const diode = classify(model);
     expect(diode.kind).toBe('led');
     expect(diode.kindReason).toContain(`${vf.toPrecision(3)} V at 5 mA`);
+  });
+  it('takes an infrared emitter model (about 1.2 V) as an LED', () => {
+    const model = 'D(IS=5e-14 N=1.8 RS=2)';
+    const vf = forwardAt5mA(model); // ngspice 39
+    // Infrared emitters drop about 1.1–1.4 V, well above silicon's 0.7 V (common practice, no source).
+    expect(vf).toBeGreaterThan(1.05);
+    expect(vf).toBeLessThan(1.4);
+    expect(classify(model).kind).toBe('led');
   });
   it('takes a Schottky model (about 0.3 V) as a Schottky', () => {
     const model = 'D(IS=1u N=1.05 RS=0.1)';

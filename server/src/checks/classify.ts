@@ -11,8 +11,13 @@ import type { DiodeKind } from './vocabulary.js';
 
 /** "A few mA": the current at which forward voltages are compared (common practice, no source). */
 export const CLASSIFICATION_CURRENT = 5e-3;
-/** Above this forward voltage at a few mA a diode is an LED (product.md; LEDs are above 1.5 V, silicon about 0.7 V: common practice, no source). */
-export const LED_FORWARD_VOLTAGE_THRESHOLD = 1.5;
+/**
+ * Above this forward voltage at a few mA a diode is an LED. Visible LEDs drop about 1.8 V (red)
+ * to over 3 V (blue, white), infrared emitters about 1.1–1.4 V; a silicon junction about 0.7 V
+ * (product.md; common practice, no source). 1 V keeps infrared emitters among the LEDs with
+ * room to spare above silicon.
+ */
+export const LED_FORWARD_VOLTAGE_THRESHOLD = 1.0;
 /** Below this a diode is a Schottky (product.md; Schottky about 0.4 V, silicon about 0.7 V: common practice, no source). */
 export const SCHOTTKY_FORWARD_VOLTAGE_THRESHOLD = 0.45;
 /** A BV below this that the circuit drives into breakdown marks a zener ("tens of volts or less", product.md; rectifiers start at 50 V, common practice). */
