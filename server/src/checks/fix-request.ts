@@ -28,6 +28,13 @@ export type FixRequest =
       maximumCurrent: number;
       governingCorner: string;
       thevenin?: TheveninView;
+      /**
+       * A current sink sets the current: its transistor and the emitter (source) resistor that
+       * sets it, the current's response to that resistor (d ln I / d ln R) and the current at
+       * the governing corner (A). The fix re-values that resistor; a resistor in series would
+       * only saturate the transistor.
+       */
+      currentSetter?: { transistor: string; resistor: string; sensitivity: number; current: number };
     }
   /** Re-value a zener's series resistor inside its window from min supply/max load to max supply/min load. */
   | {
