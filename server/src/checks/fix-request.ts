@@ -31,10 +31,11 @@ export type FixRequest =
       /**
        * A current sink sets the current: its transistor and the emitter (source) resistor that
        * sets it, the current's response to that resistor (d ln I / d ln R) and the current at
-       * the governing corner (A). The fix re-values that resistor; a resistor in series would
-       * only saturate the transistor.
+       * the governing corner (A), and the corners at which the transistor is in its active
+       * region. The fix re-values that resistor, and must leave the transistor active at those
+       * corners; a resistor in series would only saturate it.
        */
-      currentSetter?: { transistor: string; resistor: string; sensitivity: number; current: number };
+      currentSetter?: { transistor: string; resistor: string; sensitivity: number; current: number; activeCorners: string[] };
     }
   /** Re-value a zener's series resistor inside its window from min supply/max load to max supply/min load. */
   | {
