@@ -18,6 +18,7 @@ import { declaredKind, describeRating, diodeRatings, partsInParallel, resistorRa
 import { RULES } from './rules/index.js';
 import type { Solver } from './solver.js';
 import { applySuppressions } from './suppression.js';
+import { tellOnce } from './told-once.js';
 import { buildRegions, localCircuit, localCorner, takenNames } from './regions.js';
 import { buildTopology, nodesWithinRails } from './topology.js';
 import { RATING_SYMBOLS, type DiodeKind, type DiodeRatingKey } from './vocabulary.js';
@@ -257,16 +258,17 @@ export function checkWith(
   }
   findings.push(...hazardCautions(circuit, solves));
 
-  const visible = applySuppressions(findings, circuit, directives, config)
+  const shown = applySuppressions(findings, circuit, directives, config)
     .map((finding) => withSeverity(finding, settings))
     .filter((finding): finding is Finding => finding !== undefined);
+  const told = tellOnce(shown, fixRequests.filter((entry) => shown.includes(entry.finding)), (name) => elementsByName.get(name));
   return {
-    findings: visible,
+    findings: told.findings,
     diodes: diodes.map((diode) => diodeReport(diode, plans, solves)),
     corners: plans.map((plan) => plan.corner),
     cornerPlans: plans,
     solves,
-    fixRequests: fixRequests.filter((entry) => visible.includes(entry.finding)),
+    fixRequests: told.fixRequests,
   };
 }
 

@@ -4,6 +4,7 @@ import { CONDUCTION_THRESHOLD } from '../checks/thresholds.js';
 import type { Finding, Fix } from '../findings.js';
 import { formatQuantity } from '../units.js';
 import { diodeExtremes, elementNamed } from './readings.js';
+import { leafName } from './names.js';
 import { nodeFields, replaceEdit } from './source-text.js';
 import type { FixCandidate } from './together.js';
 import type { FixSession } from './verify.js';
@@ -38,7 +39,9 @@ export function flipDiodeCandidate(session: FixSession, request: FlipRequest, fi
           : after.reverseVoltage >= NEGLIGIBLE_VOLTAGE
             ? `; it then blocks ${formatQuantity(after.reverseVoltage, 'V')}`
             : '; it then idles';
-      return { title: `Turn ${diode.name} around (anode to ${cathode.text}, cathode to ${anode.text}${then})`, preferred: true, edits };
+      // A line inside a subcircuit is every instance's line: the title says so.
+      const what = diode.instances.length > 0 ? `${leafName(diode.name)} around in every instance of its subcircuit` : `${diode.name} around`;
+      return { title: `Turn ${what} (anode to ${cathode.text}, cathode to ${anode.text}${then})`, preferred: true, edits };
     },
   };
 }
