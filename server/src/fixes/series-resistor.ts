@@ -4,6 +4,7 @@
 // Rth = Voc / Isc), the current aimed at below the LED's rating with margin, and the LED's
 // own forward voltage at that current (solved): R = (Voc − Vf) / I − Rth (Ohm's law). It is
 // rounded up within the preferred series, so that the current only falls, and re-simulated.
+// When a current sink sets the current, its emitter resistor is re-valued instead.
 import type { CornerPlan, FixRequest } from '../checks/index.js';
 import { readDirectives } from '../checks/directives.js';
 import { resistorRatings } from '../checks/ratings.js';
@@ -15,6 +16,7 @@ import { formatQuantity } from '../units.js';
 import { diodeVoltageAt, measureThevenin } from './probes.js';
 import { diodeExtremes, elementNamed, lowestScale, planNamed, resistorPower, scaleAt, solveOptionsOf } from './readings.js';
 import { changeResistorValue, insertSeriesResistor } from './resistor-lines.js';
+import { currentSetterFixes } from './sink-resistor.js';
 import {
   LED_CURRENT_MARGIN,
   MAXIMUM_CANDIDATES_PER_FINDING,
@@ -46,6 +48,8 @@ export interface SeriesResistorDesign {
 }
 
 export function currentLimitFixes(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): Fix[] {
+  // A current sink sets the current: its own resistor is the one to change (sink-resistor.ts).
+  if (request.currentSetter) return currentSetterFixes(session, request, finding, plans);
   const diode = elementNamed(session.circuit, request.diode);
   const plan = planNamed(plans, request.governingCorner);
   if (!diode || diode.type !== 'D' || !plan || !Number.isFinite(request.maximumCurrent) || !(request.maximumCurrent > 0)) return [];

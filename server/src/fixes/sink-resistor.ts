@@ -1,0 +1,100 @@
+// Re-valuing the resistor that sets a current sink's current (its emitter or source
+// resistor), when the LEDs in its collector carry too much. A resistor in series with the
+// LEDs would not do: the sink would take up the extra drop by leaving its active region
+// (a saturated transistor), and the current would then hang on the supply, as if the sink
+// were not there. The sink's current follows its resistor as I ∝ R^s, s measured by the
+// checks (about −1 when the base is held: I ≈ VE / RE); the value is aimed at the LED's
+// rating with margin, at the resistor's low tolerance, rounded up in the preferred series,
+// and re-simulated. A value is kept only if the transistor stays active at every corner
+// where it was active before.
+import type { CornerPlan, FixRequest } from '../checks/index.js';
+import { collectorEmitterVoltage, drainSourceVoltage, transistorActive } from '../checks/current-sink.js';
+import type { Bjt, Mosfet, Resistor } from '../netlist/circuit.js';
+import type { Finding, Fix } from '../findings.js';
+import { preferredValue } from '../preferred.js';
+import { formatQuantity } from '../units.js';
+import { diodeExtremes, elementNamed, lowestScale, planNamed, resistorPower, scaleAt } from './readings.js';
+import { changeResistorValue } from './resistor-lines.js';
+import { AIM_TOLERANCE } from './series-resistor.js';
+import { LED_CURRENT_MARGIN, MAXIMUM_CANDIDATES_PER_FINDING } from './values.js';
+import type { FixSession, Verified } from './verify.js';
+
+type LimitCurrent = Extract<FixRequest, { kind: 'limit-current' }>;
+type CurrentSetter = NonNullable<LimitCurrent['currentSetter']>;
+
+export function currentSetterFixes(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): Fix[] {
+  const setter = request.currentSetter;
+  if (!setter) return [];
+  const resistor = elementNamed(session.circuit, setter.resistor);
+  const plan = planNamed(plans, request.governingCorner);
+  if (!resistor || resistor.type !== 'R' || !plan || !Number.isFinite(request.maximumCurrent) || !(setter.sensitivity < 0) || !(setter.current > 0)) return [];
+  const aimed = request.maximumCurrent * LED_CURRENT_MARGIN;
+  // At the governing corner the resistor had its corner's value; the new one must hold at its lowest.
+  const atCorner = resistor.resistance * scaleAt(plan, resistor.name);
+  const least = (atCorner * Math.pow(setter.current / aimed, -1 / setter.sensitivity)) / lowestScale(plans, resistor.name);
+  const series = session.settings.preferredSeries;
+  let value = preferredValue(least, series, 'up');
+  let passing: Fix | undefined;
+  for (let candidate = 0; value !== undefined && candidate < MAXIMUM_CANDIDATES_PER_FINDING; candidate++) {
+    const edits = changeResistorValue(session, resistor, value);
+    if (!edits) break;
+    const verdict = session.verify(edits, finding);
+    if (!verdict.ok && (verdict.reason === 'budget' || verdict.reason === 'edit-failed')) break;
+    const rechecked = verdict.ok ? verdict.verified : verdict.rechecked;
+    const current = rechecked ? diodeExtremes(rechecked, request.diode)?.forwardCurrent : undefined;
+    if (verdict.ok) {
+      const headroom = leastHeadroom(verdict.verified, setter);
+      if (headroom === undefined) {
+        // The re-check passed, but the sink no longer regulates somewhere it did: that defeats the design.
+        session.statistics.rejected++;
+      } else {
+        const fix: Fix = { title: title(verdict.verified, request.diode, resistor, value, setter.transistor, headroom), preferred: true, edits };
+        if (current === undefined || current <= aimed * (1 + AIM_TOLERANCE)) return [fix];
+        passing ??= fix;
+      }
+    }
+    // Next: the next value up, or further when the current is still high (I ∝ R^s).
+    const nextUp = preferredValue(value * (1 + AIM_TOLERANCE), series, 'up');
+    const scaled = current !== undefined && current > aimed ? preferredValue(value * Math.pow(current / aimed, -1 / setter.sensitivity), series, 'up') : undefined;
+    value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
+  }
+  return passing ? [passing] : [];
+}
+
+/**
+ * The least collector-emitter (drain-source) voltage of the sink's transistor over the
+ * re-check's corners; undefined when it has left its active region at a corner where it was
+ * active before the fix.
+ */
+function leastHeadroom(verified: Verified, setter: CurrentSetter): { voltage: number; word: string } | undefined {
+  const transistor = elementNamed(verified.circuit, setter.transistor);
+  if (!transistor || (transistor.type !== 'Q' && transistor.type !== 'M')) return undefined;
+  const wasActive = new Set(setter.activeCorners);
+  let least: number | undefined;
+  verified.check.solves.forEach((result, index) => {
+    if (!result.ok) return;
+    const corner = verified.check.cornerPlans[index]?.corner.name;
+    const active = transistorActive(transistor, result.point);
+    if (corner !== undefined && wasActive.has(corner) && !active) least = Number.NEGATIVE_INFINITY;
+    const voltage = headroomOf(transistor, result.point);
+    if (voltage !== undefined && (least === undefined || voltage < least)) least = voltage;
+  });
+  if (least === undefined || least === Number.NEGATIVE_INFINITY) return undefined;
+  return { voltage: least, word: transistor.type === 'Q' ? 'collector-emitter' : 'drain-source' };
+}
+
+function headroomOf(transistor: Bjt | Mosfet, point: Parameters<typeof transistorActive>[1]): number | undefined {
+  return transistor.type === 'Q' ? collectorEmitterVoltage(transistor, point) : drainSourceVoltage(transistor, point);
+}
+
+/** "Change RE from 15 Ω to 36 Ω (LED 13.1 mA, resistor 6.2 mW, QSINK collector-emitter 8.93 V or more)", with the re-check's numbers. */
+function title(verified: Verified, diode: string, resistor: Resistor, value: number, transistor: string, headroom: { voltage: number; word: string }): string {
+  const current = diodeExtremes(verified, diode)?.forwardCurrent;
+  const power = resistorPower(verified, resistor.name);
+  const numbers = [
+    current !== undefined ? `LED ${formatQuantity(current, 'A')}` : undefined,
+    power !== undefined ? `resistor ${formatQuantity(power, 'W')}` : undefined,
+    `${transistor} ${headroom.word} ${formatQuantity(headroom.voltage, 'V')} or more`,
+  ].filter((each) => each !== undefined);
+  return `Change ${resistor.name} from ${formatQuantity(resistor.resistance, 'Ω')} to ${formatQuantity(value, 'Ω')} (${numbers.join(', ')})`;
+}
