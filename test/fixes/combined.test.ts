@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { analyze, withVerifiedFixes } from '../../server/src/analysis.js';
 import { applyEdits } from '../../server/src/edits.js';
 import { declareNgspiceGate } from '../support/ngspice.js';
-import { MAIN_URI, memoryReader, ngspiceValue } from './support.js';
+import { MAIN_URI, memoryReader, ngspiceValue, ZENER_PANEL as PANEL } from './support.js';
 
 const ngspiceRuns = declareNgspiceGate();
 
@@ -23,24 +23,7 @@ function zenerDissipation(netlist: string): number {
   return ngspiceValue(high, 'v(z)') * -ngspiceValue(high, '@dz[id]');
 }
 
-// Two indicator LEDs on a zener-regulated rail. Each LED's resistor fix alone leaves the other
-// LED drawing most of the feed current; both together hand that current to the zener.
-const PANEL = [
-  'status panel: two indicator LEDs on a zener-regulated 5.1 V rail',
-  'VIN in 0 DC 12',
-  'RFEED in z 100',
-  'DZ 0 z ZREF',
-  '*pnlint: rating ZREF kind=zener vz=5.1 pd=200m',
-  'R1 z a1 68',
-  'D1 a1 0 DLED',
-  'R2 z a2 68',
-  'D2 a2 0 DLED',
-  '*pnlint: rating DLED kind=led if=20m',
-  '.model ZREF D(IS=1e-14 N=1 RS=2 BV=5.1 IBV=5m)',
-  '.model DLED D(IS=1e-20 N=1.8 RS=2.5)',
-  '.end',
-  '',
-].join('\n');
+
 
 describe.runIf(ngspiceRuns)('fix all', () => {
   it('leaves out a fix that is right alone but wrong together with the others', () => {

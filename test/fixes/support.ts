@@ -161,3 +161,22 @@ export function expectFixHolds(checked: Checked, finding: Finding, fix: Fix, ngs
   }
   return { files, after, circuit };
 }
+
+// Two indicator LEDs on a zener-regulated rail. Each LED's resistor fix alone leaves the other
+// LED drawing most of the feed current; both together hand that current to the zener.
+export const ZENER_PANEL = [
+  'status panel: two indicator LEDs on a zener-regulated 5.1 V rail',
+  'VIN in 0 DC 12',
+  'RFEED in z 100',
+  'DZ 0 z ZREF',
+  '*pnlint: rating ZREF kind=zener vz=5.1 pd=200m',
+  'R1 z a1 68',
+  'D1 a1 0 DLED',
+  'R2 z a2 68',
+  'D2 a2 0 DLED',
+  '*pnlint: rating DLED kind=led if=20m',
+  '.model ZREF D(IS=1e-14 N=1 RS=2 BV=5.1 IBV=5m)',
+  '.model DLED D(IS=1e-20 N=1.8 RS=2.5)',
+  '.end',
+  '',
+].join('\n');

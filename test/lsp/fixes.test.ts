@@ -4,6 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CodeAction, TextDocumentEdit } from 'vscode-languageserver-protocol';
 import { applyLspEdits, makeFolder, startServer, type TestClient } from './harness.js';
+import { ZENER_PANEL } from '../fixes/support.js';
 
 const DIVIDER = 'sense divider\nV1 in 0 DC 5\nR1 in a 4k7\nR2 a 0 2k2\n.end\n';
 
@@ -91,22 +92,7 @@ describe('fixes as code actions', () => {
 describe('fix all offers only what a re-check of the combination passes', () => {
   // Two LEDs on a zener-regulated rail (test/fixes/combined.test.ts has ngspice 39's numbers):
   // each resistor fix is right alone, but both together put the zener over its rating.
-  const PANEL = [
-    'status panel: two indicator LEDs on a zener-regulated 5.1 V rail',
-    'VIN in 0 DC 12',
-    'RFEED in z 100',
-    'DZ 0 z ZREF',
-    '*pnlint: rating ZREF kind=zener vz=5.1 pd=200m',
-    'R1 z a1 68',
-    'D1 a1 0 DLED',
-    'R2 z a2 68',
-    'D2 a2 0 DLED',
-    '*pnlint: rating DLED kind=led if=20m',
-    '.model ZREF D(IS=1e-14 N=1 RS=2 BV=5.1 IBV=5m)',
-    '.model DLED D(IS=1e-20 N=1.8 RS=2.5)',
-    '.end',
-    '',
-  ].join('\n');
+  const PANEL = ZENER_PANEL;
   let client: TestClient;
   const workspace = makeFolder({});
   const uri = workspace.uri('panel.cir');
