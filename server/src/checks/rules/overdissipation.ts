@@ -1,11 +1,13 @@
 // overdissipation: the power in a diode, a zener, or the resistor in series with an LED or a
 // zener, at the worst corner, against its rating. A resistor without a rating gets the
-// default power rating setting.
+// default power rating setting. The LEDs of one series string are one finding (they carry
+// one current).
 import type { Resistor } from '../../netlist/circuit.js';
 import type { Finding } from '../../findings.js';
 import { formatQuantity } from '../../units.js';
 import { atCorner, type CheckContext } from '../context.js';
 import type { CornerPlan } from '../corners.js';
+import { ledString } from '../current-sink.js';
 import { makeFinding } from '../finding.js';
 import { describeRating, formatPerPart, partsInParallel } from '../ratings.js';
 import { feedResistors, seriesResistors } from '../topology.js';
@@ -21,6 +23,7 @@ export const overdissipation: Rule = {
   check(context: CheckContext): Finding[] {
     const findings: Finding[] = [];
     const resistorsToCheck = new Map<Resistor, string>();
+    const ledStrings = new Map<string, { names: string[]; largest: NonNullable<ReturnType<typeof worstCorner>>; finding: Finding }>();
     for (const diode of context.diodes) {
       if (diode.unchecked) continue;
       if (diode.kind === 'led' || diode.kind === 'zener') {
@@ -43,15 +46,25 @@ export const overdissipation: Rule = {
       // `m=` parts in parallel share the power; the rating is each part's.
       if (!rating || worst.value / partsInParallel(diode.element) <= rating.value) continue;
       const typical = rating.source.origin === 'library';
-      findings.push(
-        makeFinding(
-          ID,
-          typical ? 'warning' : 'error',
-          `${kindNameOpening(diode.kind)} ${diode.element.name} dissipates ${formatPerPart(diode.element, worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
-          diode.element.location,
-          { element: diode.element.name, related: cornerSources(context, worst.at.plan) },
-        ),
+      // LEDs in one series string carry one current: one finding for the string, on its first LED.
+      const stringKey = diode.kind === 'led' ? `${ledString(context, diode)[0]?.element.name}|${rating.value}|${partsInParallel(diode.element)}` : undefined;
+      const string = stringKey !== undefined ? ledStrings.get(stringKey) : undefined;
+      if (string) {
+        if (worst.value > string.largest.value) string.largest = worst;
+        string.finding.message = `LEDs ${string.names.join(', ')}, ${diode.element.name} in series each dissipate ${formatPerPart(diode.element, string.largest.value, 'W')} ${atCorner(string.largest.at.plan)}; rating ${limitText}.`;
+        string.finding.related.splice(string.names.length - 1, 0, { location: diode.element.location, message: `${diode.element.name}, in series with ${string.names[0]}: the same current` });
+        string.names.push(diode.element.name);
+        continue;
+      }
+      const finding = makeFinding(
+        ID,
+        typical ? 'warning' : 'error',
+        `${kindNameOpening(diode.kind)} ${diode.element.name} dissipates ${formatPerPart(diode.element, worst.value, 'W')} ${atCorner(worst.at.plan)}; rating ${limitText}.`,
+        diode.element.location,
+        { element: diode.element.name, related: cornerSources(context, worst.at.plan) },
       );
+      findings.push(finding);
+      if (stringKey !== undefined) ledStrings.set(stringKey, { names: [diode.element.name], largest: worst, finding });
     }
     for (const [resistor, diodeName] of resistorsToCheck) {
       const rating = context.resistors.get(resistor.name)?.power;
