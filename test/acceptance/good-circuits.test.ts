@@ -163,6 +163,23 @@ describe.runIf(ngspice)('directives and pnlint.json decide the verdict', () => {
 });
 
 
+/** Every node voltage and every source and inductor current of pnlint's nominal corner, against ngspice 39's values. */
+function expectAgreement(file: string, nominal: OperatingPointJson['corners'][number], reference: ReadonlyMap<string, number>): void {
+  const nodes = Object.entries(nominal.nodes).filter(([name]) => name !== '0');
+  expect(nodes.length).toBeGreaterThan(0);
+  for (const [name, voltage] of nodes) {
+    const expected = reference.get(ngspiceNodeName(name));
+    expect(expected, `ngspice has no node ${name}`).toBeDefined();
+    expect(near(voltage, expected!, VOLTAGE_RELATIVE, VOLTAGE_ABSOLUTE), `${file} node ${name}: pnlint ${voltage}, ngspice ${expected}`).toBe(true);
+  }
+  for (const [element, current] of Object.entries(nominal.branches)) {
+    if (!/^[VL]/i.test(element.split('.').pop()!)) continue;
+    const expected = reference.get(ngspiceBranchName(element));
+    expect(expected, `ngspice has no branch ${element}`).toBeDefined();
+    expect(near(current, expected!, CURRENT_RELATIVE, CURRENT_ABSOLUTE), `${file} ${element}: pnlint ${current}, ngspice ${expected}`).toBe(true);
+  }
+}
+
 describe.runIf(ngspice)('pnlint op agrees with ngspice 39 at the nominal corner', () => {
   it.each(COMPARED)('%s: every node voltage and every source current', (file) => {
     const op = operatingPoint(`good/${file}`);
@@ -171,19 +188,7 @@ describe.runIf(ngspice)('pnlint op agrees with ngspice 39 at the nominal corner'
     const includes = file === 'g19-params-include.cir' ? { 'lib/indicators.lib': readCircuit('good/lib/indicators.lib') } : undefined;
     const reference = runNgspiceOperatingPoint(readCircuit(`good/${file}`), includes ? { includes } : {});
     expect(reference.ok, reference.failure).toBe(true);
-    const nodes = Object.entries(nominal.nodes).filter(([name]) => name !== '0');
-    expect(nodes.length).toBeGreaterThan(0);
-    for (const [name, voltage] of nodes) {
-      const expected = reference.values.get(ngspiceNodeName(name));
-      expect(expected, `ngspice has no node ${name}`).toBeDefined();
-      expect(near(voltage, expected!, VOLTAGE_RELATIVE, VOLTAGE_ABSOLUTE), `${file} node ${name}: pnlint ${voltage}, ngspice ${expected}`).toBe(true);
-    }
-    for (const [element, current] of Object.entries(nominal.branches)) {
-      if (!/^[VL]/i.test(element.split('.').pop()!)) continue;
-      const expected = reference.values.get(ngspiceBranchName(element));
-      expect(expected, `ngspice has no branch ${element}`).toBeDefined();
-      expect(near(current, expected!, CURRENT_RELATIVE, CURRENT_ABSOLUTE), `${file} ${element}: pnlint ${current}, ngspice ${expected}`).toBe(true);
-    }
+    expectAgreement(file, nominal, reference.values);
   });
 
   it('g06: the LED on a 15 mA source carries 15 mA (an ideal current source sets its current)', () => {
@@ -265,19 +270,7 @@ describe.runIf(ngspice)('pnlint op agrees with ngspice 39 where the models come 
     const includes = Object.fromEntries(COMPARED_WITH_INCLUDES[file].map((path) => [path, readCircuit(`good/${path}`)]));
     const reference = runNgspiceOperatingPoint(readCircuit(`good/${file}`), { includes });
     expect(reference.ok, reference.failure).toBe(true);
-    const nodes = Object.entries(nominal.nodes).filter(([name]) => name !== '0');
-    expect(nodes.length).toBeGreaterThan(0);
-    for (const [name, voltage] of nodes) {
-      const expected = reference.values.get(ngspiceNodeName(name));
-      expect(expected, `ngspice has no node ${name}`).toBeDefined();
-      expect(near(voltage, expected!, VOLTAGE_RELATIVE, VOLTAGE_ABSOLUTE), `${file} node ${name}: pnlint ${voltage}, ngspice ${expected}`).toBe(true);
-    }
-    for (const [element, current] of Object.entries(nominal.branches)) {
-      if (!/^[VL]/i.test(element.split('.').pop()!)) continue;
-      const expected = reference.values.get(ngspiceBranchName(element));
-      expect(expected, `ngspice has no branch ${element}`).toBeDefined();
-      expect(near(current, expected!, CURRENT_RELATIVE, CURRENT_ABSOLUTE), `${file} ${element}: pnlint ${current}, ngspice ${expected}`).toBe(true);
-    }
+    expectAgreement(file, nominal, reference.values);
   });
 
   it('g25 and g26: the section and include models are found (no unknown-model), and the zener ratings written in the library apply', () => {
