@@ -79,22 +79,17 @@ export interface CurrentSetter {
 }
 
 /**
- * The transistor at an end of the LED's series chain with its collector (drain) there, in its
- * active region at `at`, whose emitter (source) resistor carries the current and sets it.
+ * The transistor that carries the LED's series current with its collector (drain) towards the
+ * LED, in its active region at `at`, whose emitter (source) resistor carries the current and
+ * sets it. A bipolar transistor ends the chain (its base is a third current path); a MOSFET
+ * draws no gate current, so it sits inside the chain, its source resistor after it.
  */
 export function currentSetterOf(context: CheckContext, diode: CheckedDiode, at: DiodeAtCorner): CurrentSetter | undefined {
   const planIndex = context.plans.indexOf(at.plan);
   const solved = context.solves[planIndex];
   if (!solved?.ok) return undefined;
   const point = solved.point;
-  const string = seriesString(context.topology, diode.element);
-  for (const [index, end] of string.ends.entries()) {
-    if (context.topology.rails.has(end)) continue;
-    const last = index === 0 ? string.parts[0]! : string.parts[string.parts.length - 1]!;
-    const others = (context.topology.connections.get(end) ?? []).filter((element) => element !== last);
-    if (others.length !== 1) continue;
-    const transistor = others[0]!;
-    if ((transistor.type !== 'Q' && transistor.type !== 'M') || transistor.nodes[0] !== end) continue;
+  for (const transistor of transistorsInString(context.topology, diode.element)) {
     if (!transistorActive(transistor, point)) continue;
     const resistor = emitterResistor(context, transistor, point);
     if (!resistor) continue;
@@ -107,6 +102,32 @@ export function currentSetterOf(context: CheckContext, diode: CheckedDiode, at: 
     return { transistor, resistor, resistorVoltage: Math.abs(voltageAcross(point, resistor) ?? 0), sensitivity, activeCorners };
   }
   return undefined;
+}
+
+/** The transistors the element's series current flows through collector (drain) first: MOSFETs in the chain, a bipolar transistor at either end. */
+function transistorsInString(topology: Topology, element: Element): (Bjt | Mosfet)[] {
+  const string = seriesString(topology, element);
+  const found: (Bjt | Mosfet)[] = [];
+  const [anodeSide, cathodeSide] = [string.parts.slice(0, string.parts.indexOf(element)), string.parts.slice(string.parts.indexOf(element) + 1)];
+  // Walking away from the LED, the drain is met before the source.
+  let node = element.nodes[1]!;
+  for (const part of cathodeSide) {
+    if (part.type === 'M' && part.nodes[0] === node) found.push(part);
+    node = farNode(part, node) ?? node;
+  }
+  node = element.nodes[0]!;
+  for (const part of [...anodeSide].reverse()) {
+    if (part.type === 'M' && part.nodes[0] === node) found.push(part);
+    node = farNode(part, node) ?? node;
+  }
+  for (const [index, end] of string.ends.entries()) {
+    if (topology.rails.has(end)) continue;
+    const last = index === 0 ? string.parts[0]! : string.parts[string.parts.length - 1]!;
+    const others = (topology.connections.get(end) ?? []).filter((each) => each !== last);
+    const transistor = others.length === 1 ? others[0]! : undefined;
+    if (transistor?.type === 'Q' && transistor.nodes[0] === end) found.push(transistor);
+  }
+  return found;
 }
 
 /** "current sink" for an NPN or N-channel transistor (below its load), "current source" for a PNP or P-channel one (above it). */

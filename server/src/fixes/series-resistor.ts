@@ -37,6 +37,12 @@ export const LEAST_RESISTOR_DROP = LED_FORWARD_VOLTAGE_SPREAD / LED_CURRENT_CHAN
 /** A re-checked current this close to the aimed one counts as on aim (ours: far below any part's tolerance, above solver noise). */
 export const AIM_TOLERANCE = 1e-3;
 
+/**
+ * A re-checked current below this fraction of the aimed one falls far short: a lower value is
+ * tried (ours: one E12 step is about 20 %, so a value rounded up in E12 or finer lands above it).
+ */
+export const UNDERSHOOT = 0.8;
+
 export interface SeriesResistorDesign {
   /** The least resistance (Ω, nominal) that keeps the current at or below `current` at the governing corner. */
   leastResistance: number;
@@ -59,6 +65,8 @@ export function currentLimitFixes(session: FixSession, request: LimitCurrent, fi
   const series = session.settings.preferredSeries;
   // The first value that passes its re-check, kept in case no later one also meets the aimed current.
   let passing: Fix | undefined;
+  // The last value that passed and met the aim, while a lower one is tried because the current fell far short.
+  let onAim: Fix | undefined;
   let value = preferredValue(design.leastResistance, series, 'up');
   for (let candidate = 0; value !== undefined && candidate < MAXIMUM_CANDIDATES_PER_FINDING; candidate++) {
     let edits: TextEdit[] | undefined;
@@ -78,14 +86,24 @@ export function currentLimitFixes(session: FixSession, request: LimitCurrent, fi
     const current = rechecked ? diodeExtremes(rechecked, diode.name)?.forwardCurrent : undefined;
     if (verdict.ok) {
       const fix: Fix = { title: title(verdict.verified, diode.name, resistorName, value, existing), preferred: true, edits };
-      if (current === undefined || current <= design.current * (1 + AIM_TOLERANCE)) return [fix];
+      const meetsAim = current === undefined || current <= design.current * (1 + AIM_TOLERANCE);
+      if (!meetsAim && onAim) return [onAim]; // the lower value overshoots: keep the one that met the aim
+      if (meetsAim) {
+        // Far short of the aim (the Thevenin view of one LED of a string leaves out the others' forward voltage): try lower once more.
+        const lower = current !== undefined && current < design.current * UNDERSHOOT ? preferredValue((value * current) / design.current, series, 'up') : undefined;
+        if (lower === undefined || !(lower < value)) return [fix];
+        onAim = fix;
+        value = lower;
+        continue;
+      }
       passing ??= fix;
-    }
+    } else if (onAim) return [onAim];
     // Next: the next value up, or further when the current fell short by more (current about ∝ 1/R where the resistor dominates).
     const nextUp = preferredValue(value * (1 + AIM_TOLERANCE), series, 'up');
     const scaled = current !== undefined && current > design.current ? preferredValue((value * current) / design.current, series, 'up') : undefined;
     value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
   }
+  if (onAim) return [onAim];
   return passing ? [passing] : [];
 }
 
