@@ -1,0 +1,149 @@
+// Fixing an LED whose current sink is set too high: the sink's emitter (source) resistor is
+// re-valued, not a resistor inserted in series (which would saturate the sink and leave the
+// current to the supply). Expected values come from ngspice 39 (the smallest E24 value that
+// holds the LED at the aimed current, found by solving each candidate), from the textbook
+// op-amp result (negative feedback holds the source resistor at the reference: I = VREF / R),
+// and from the IEC 60063 tables typed in support.ts. The aim is 70 % of the LED's 20 mA rule
+// of thumb (keep power below about 50–70 % of a rating; common practice, no source); the
+// supply corners are ±5 % (the default supply tolerance; common practice, no source).
+import { describe, expect, it } from 'vitest';
+import { declareNgspiceGate } from '../support/ngspice.js';
+import { checkWithFixes, E24_PUBLISHED, expectFixHolds, findingOf, MAIN_URI, ngspiceValue, ngspiceValues, preferredFix, roundUpIn, tableValuesBetween } from './support.js';
+
+const ngspiceRuns = declareNgspiceGate();
+
+const RATING = 20e-3; // rule of thumb for an LED with no rating (common practice, no source)
+const AIMED = 0.7 * RATING; // 70 % margin (common practice, no source)
+/** A small-signal bipolar transistor saturates at about 0.1–0.3 V collector to emitter (common practice, no source). */
+const SATURATED_BELOW = 0.3;
+/** A lit indicator draws at least about 0.1 mA (common practice, no source). */
+const LIT = 100e-6;
+
+/** The source's line rewritten to a DC value (`V9 v9 0 DC 9.45`), to ask ngspice for a corner. */
+function atSource(netlist: string, source: string, value: number): string {
+  return netlist.replace(new RegExp(`^(${source} \\S+ \\S+) DC \\S+`, 'm'), `$1 DC ${value}`);
+}
+
+/** "13.2 mA" → 0.0132; "5.03 V" → 5.03. */
+function quantity(text: string, unit: 'mA' | 'V'): number {
+  return Number(text) * (unit === 'mA' ? 1e-3 : 1);
+}
+
+// An aquarium hood: a blue LED in the collector of an NPN sink set by an 18 Ω emitter resistor (about 30 mA).
+const NPN_SINK = `Aquarium hood: blue LED in the collector of an NPN sink
+V9 v9 0 DC 9
+RB v9 b 4.7k
+DB1 b m SIG
+DB2 m 0 SIG
+Q1 k b e NPNSMALL
+RS e 0 18
+DBLUE v9 k LEDBLUE
+.model SIG D(IS=2n N=1.8 RS=0.5)
+.model LEDBLUE D(IS=1e-24 N=2.2 RS=5)
+.model NPNSMALL NPN(IS=2e-14 BF=200 VAF=60)
+.end
+`;
+
+/** The netlist with an ammeter in the LED's lead and the supply at `supply`, as ngspice 39 solves it: LED current and the sink's collector-emitter voltage. */
+function sinkAt(netlist: string, supply: number): { current: number; collectorEmitter: number } {
+  const deck = atSource(netlist, 'V9', supply).replace('DBLUE v9 k LEDBLUE', 'VAM v9 va DC 0\nDBLUE va k LEDBLUE');
+  const values = ngspiceValues(deck, ['i(vam)', 'v(k)', 'v(e)']);
+  return { current: values.get('i(vam)')!, collectorEmitter: values.get('v(k)')! - values.get('v(e)')! };
+}
+
+describe.runIf(ngspiceRuns)('an LED whose current sink is set too high', () => {
+  it('gets its emitter resistor re-valued: the smallest E24 value that ngspice 39 shows holding the aim at the high corner', () => {
+    const checked = checkWithFixes(NPN_SINK);
+    const finding = findingOf(checked, 'led-current-unlimited', 'DBLUE');
+    const fix = preferredFix(finding);
+    const match = /^Change RS from 18 Ω to (\d+) Ω \(LED ([\d.]+) mA, resistor [\d.]+ mW, Q1 collector-emitter ([\d.]+) V or more\)$/.exec(fix.title);
+    expect(match, fix.title).not.toBeNull();
+    // The oracle: ngspice 39 at 9.45 V for each E24 value from 18 Ω up; the first at or under 14 mA.
+    const expected = tableValuesBetween(E24_PUBLISHED, 18, 200).find((value) => sinkAt(NPN_SINK.replace('RS e 0 18', `RS e 0 ${value}`), 9 * 1.05).current <= AIMED);
+    expect(Number(match![1])).toBe(expected);
+    // No resistor inserted in series with the LED: a one-word edit of RS's line.
+    expect(finding.fixes.some((each) => each.title.startsWith('Insert'))).toBe(false);
+    const { files } = expectFixHolds(checked, finding, fix, ngspiceRuns);
+    expect(files[MAIN_URI]).toBe(NPN_SINK.replace('RS e 0 18', `RS e 0 ${expected}`));
+    // ngspice 39 on the fixed circuit at every corner: lit, under the aim, and the sink still out of saturation.
+    const corners = [9 * 0.95, 9, 9 * 1.05].map((supply) => sinkAt(files[MAIN_URI]!, supply));
+    for (const corner of corners) {
+      expect(corner.current).toBeLessThanOrEqual(AIMED);
+      expect(corner.current).toBeGreaterThan(LIT);
+      expect(corner.collectorEmitter).toBeGreaterThan(SATURATED_BELOW);
+    }
+    // The title's numbers are ngspice's: the LED at the high corner, the least headroom at the low corner.
+    expect(Math.abs(quantity(match![2]!, 'mA') - corners[2]!.current)).toBeLessThanOrEqual(0.01 * corners[2]!.current);
+    expect(Math.abs(quantity(match![3]!, 'V') - corners[0]!.collectorEmitter)).toBeLessThanOrEqual(0.01 * corners[0]!.collectorEmitter);
+  });
+
+  it('would lose its regulation to a series resistor: the one that holds 14 mA saturates the sink (ngspice 39)', () => {
+    // Why no series resistor is offered: the smallest E24 resistor in series with the LED that
+    // brings it to the aim at 9.45 V leaves the transistor below its saturation voltage.
+    const withSeries = (value: number) => NPN_SINK.replace('DBLUE v9 k LEDBLUE', `RSER v9 vs ${value}\nDBLUE vs k LEDBLUE`);
+    const at = (value: number) => {
+      const values = ngspiceValues(atSource(withSeries(value), 'V9', 9 * 1.05), ['v(v9)', 'v(vs)', 'v(k)', 'v(e)']);
+      return { current: (values.get('v(v9)')! - values.get('v(vs)')!) / value, collectorEmitter: values.get('v(k)')! - values.get('v(e)')! };
+    };
+    const value = tableValuesBetween(E24_PUBLISHED, 10, 10e3).find((candidate) => at(candidate).current <= AIMED)!;
+    expect(at(value).collectorEmitter).toBeLessThan(SATURATED_BELOW);
+  });
+
+  it('an amplifier-regulated N-MOSFET sink: the source resistor becomes VREF / 14 mA rounded up in E24', () => {
+    const netlist = `Warning beacon: amber LED in the drain of an N-MOSFET sink regulated by an amplifier
+V12 v12 0 DC 12
+VREF ref 0 DC 0.5
+*pnlint: supply VREF min=0.5 max=0.5
+EAMP g 0 ref s 100k
+M1 k g s s NPOWER L=2u W=400u
+RSNS s 0 10
+DAMB v12 k LEDAMB
+.model NPOWER NMOS(VTO=1.5 KP=50u LAMBDA=0.01)
+.model LEDAMB D(IS=1e-21 N=2 RS=3)
+.end
+`;
+    const checked = checkWithFixes(netlist);
+    const finding = findingOf(checked, 'led-current-unlimited', 'DAMB');
+    const fix = preferredFix(finding);
+    // Negative feedback holds the source at VREF: R = 0.5 V / 14 mA = 35.7 Ω, rounded up in E24 (IEC 60063).
+    const expected = roundUpIn(E24_PUBLISHED, 0.5 / AIMED);
+    expect(fix.title).toMatch(new RegExp(`^Change RSNS from 10 Ω to ${expected} Ω \\(LED [\\d.]+ mA, resistor [\\d.]+ mW, M1 drain-source [\\d.]+ V or more\\)$`));
+    const { files } = expectFixHolds(checked, finding, fix, ngspiceRuns);
+    for (const supply of [12 * 0.95, 12, 12 * 1.05]) {
+      // ngspice 39: the LED under the aim, and the MOSFET in saturation (VDS ≥ VGS − VTO, Shichman–Hodges; VTO 1.5 V from the model).
+      const deck = atSource(files[MAIN_URI]!, 'V12', supply).replace('DAMB v12 k LEDAMB', 'VAM v12 va DC 0\nDAMB va k LEDAMB');
+      expect(ngspiceValue(deck, 'i(vam)')).toBeLessThanOrEqual(AIMED);
+      const values = ngspiceValues(deck, ['v(k)', 'v(g)', 'v(s)']);
+      const [drain, gate, source] = ['v(k)', 'v(g)', 'v(s)'].map((vector) => values.get(vector)!);
+      expect(drain! - source!).toBeGreaterThanOrEqual(gate! - source! - 1.5);
+    }
+  });
+});
+
+describe.runIf(ngspiceRuns)('a series string with one resistor', () => {
+  it('gets a resistor within one E24 step of the smallest that holds the aim (ngspice 39), though one LED alone sees too much voltage', () => {
+    const netlist = `Shelf strip: three white LEDs in series on 12 V through one 47 ohm resistor
+V12 v12 0 DC 12
+RLIM v12 a 47
+D1 a s1 LEDW
+D2 s1 s2 LEDW
+D3 s2 0 LEDW
+*pnlint: rating LEDW kind=led if=20m
+.model LEDW D(IS=1e-26 N=2.3 RS=6)
+.end
+`;
+    const checked = checkWithFixes(netlist);
+    const fix = preferredFix(findingOf(checked, 'led-current-unlimited', 'D1'));
+    const match = /^Change RLIM from 47 Ω to (\d+) Ω/.exec(fix.title);
+    expect(match, fix.title).not.toBeNull();
+    const currentWith = (value: number) => {
+      const values = ngspiceValues(atSource(netlist.replace('RLIM v12 a 47', `RLIM v12 a ${value}`), 'V12', 12 * 1.05), ['v(v12)', 'v(a)']);
+      return (values.get('v(v12)')! - values.get('v(a)')!) / value;
+    };
+    const values = tableValuesBetween(E24_PUBLISHED, 47, 1e3);
+    const smallest = values.findIndex((value) => currentWith(value) <= AIMED);
+    const chosen = values.indexOf(Number(match![1]));
+    expect(chosen).toBeGreaterThanOrEqual(smallest);
+    expect(chosen).toBeLessThanOrEqual(smallest + 1);
+  });
+});
