@@ -637,3 +637,42 @@ describe.runIf(ngspice)('reverse-overvoltage on a half-wave voltage doubler (b44
     }
   });
 });
+
+describe.runIf(ngspice)('led-current-unlimited on LEDs in a current sink set too high', () => {
+  it('an NPN sink whose 15 Ω emitter resistor sets 31.5 mA: the finding names the sink and RE (b42)', () => {
+    const file = 'b42-current-sink-emitter-resistor-low.cir';
+    const found = finding(file, 'led-current-unlimited');
+    expectAt(found, 'error', 9, 'DRUN');
+    // ngspice 39 at the high corner (12 V + 5 %): the LED's current and the emitter voltage across RE.
+    const netlist = withLines(readCircuit(`bad/${file}`), { V12: `V12 v12 0 DC ${12 * HIGH}` });
+    const current = referenceDiodeCurrent(netlist, 'DRUN');
+    expect(current).toBeGreaterThan(LED_RULE_OF_THUMB_CURRENT);
+    expect(near(quantityAfter(found.message, 'carries', 'A'), current)).toBe(true);
+    expect(found.message).toMatch(/the current sink QSINK sets it with its emitter resistor RE \(15 Ω, [\d.]+ mV across it\), so RE is the value to change/);
+    expect(near(quantityAfter(found.message, '15 Ω,', 'V'), referenceSolve(netlist, ['v(emit)']).get('v(emit)')!)).toBe(true);
+    expect(found.fixes.find((fix) => fix.preferred)?.title).toMatch(/^Change RE from 15 Ω to \d+ Ω /);
+    expect(report.byFile.get(file)!.filter((f) => f.severity !== 'info')).toHaveLength(1);
+  });
+
+  it('five white LEDs in series in a sink set to 32 mA by RSET: one finding per rule for the string, naming RSET (b43)', () => {
+    const file = 'b43-current-sink-string-set-high.cir';
+    const findings = report.byFile.get(file)!.filter((f) => f.severity !== 'info');
+    expect(findings.map((f) => `${f.rule} ${f.element}`)).toEqual(['led-current-unlimited D1', 'overdissipation D1']);
+    const current = finding(file, 'led-current-unlimited');
+    expectAt(current, 'error', 9, 'D1');
+    expect(current.message).toMatch(/^LEDs D1, D2, D3, D4, D5 in series carry /);
+    expect(current.message).toMatch(/the current sink QCC sets it with its emitter resistor RSET \(82 Ω, [\d.]+ V across it\), so RSET is the value to change/);
+    expect(current.fixes.find((fix) => fix.preferred)?.title).toMatch(/^Change RSET from 82 Ω to \d+ Ω /);
+    // ngspice 39 at the high corner (24 V + 5 %): the string's current through an ammeter, and D1's power.
+    const netlist = withLines(readCircuit(`bad/${file}`), { V24: `V24 v24 0 DC ${24 * HIGH}` });
+    const stringCurrent = referenceDiodeCurrent(netlist, 'D1');
+    expect(stringCurrent).toBeGreaterThan(LED_RULE_OF_THUMB_CURRENT);
+    expect(near(quantityAfter(current.message, 'carry', 'A'), stringCurrent)).toBe(true);
+    const nodes = referenceSolve(netlist, ['v(v24)', 'v(s1)', 'v(emit)']);
+    expect(near(quantityAfter(current.message, '82 Ω,', 'V'), nodes.get('v(emit)')!)).toBe(true);
+    const power = finding(file, 'overdissipation');
+    expectAt(power, 'warning', 9, 'D1'); // PD from the library's typical value: a warning
+    expect(power.message).toMatch(/^LEDs D1, D2, D3, D4, D5 in series each dissipate /);
+    expect(near(quantityAfter(power.message, 'each dissipate', 'W'), (nodes.get('v(v24)')! - nodes.get('v(s1)')!) * stringCurrent)).toBe(true);
+  });
+});
