@@ -57,13 +57,22 @@ function farNode(element: Element, node: string): string | undefined {
   return first === node ? second : first;
 }
 
+/** Each check's LED strings, by member: a string is walked once, not once per LED (rules ask for every LED). */
+const stringsOfCheck = new WeakMap<CheckContext, Map<Element, CheckedDiode[]>>();
+
 /** The LEDs in series with `diode` (itself included), in the order they sit in the chain. */
 export function ledString(context: CheckContext, diode: CheckedDiode): CheckedDiode[] {
+  let known = stringsOfCheck.get(context);
+  if (!known) stringsOfCheck.set(context, (known = new Map()));
+  const found = known.get(diode.element);
+  if (found) return found;
   const parts = seriesString(context.topology, diode.element).parts;
-  return parts.flatMap((part) => {
+  const string = parts.flatMap((part) => {
     const checked = part.type === 'D' ? context.diodeOf(part) : undefined;
     return checked && checked.kind === 'led' ? [checked] : [];
   });
+  for (const member of string) known.set(member.element, string);
+  return string;
 }
 
 /** What sets an LED string's current: the transistor and the resistor from its emitter or source to a rail. */
