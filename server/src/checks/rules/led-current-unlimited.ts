@@ -13,7 +13,7 @@ import { makeFinding } from '../finding.js';
 import { describeRating, formatPerPart, partsInParallel } from '../ratings.js';
 import { seriesResistors } from '../topology.js';
 import { CONDUCTION_THRESHOLD, forwardCurrent, LED_CURRENT_CHANGE_LIMIT, LED_FORWARD_VOLTAGE_SPREAD, worstCorner } from '../thresholds.js';
-import { cornerSources } from './related.js';
+import { cornerSources, seriesResistorsOf } from './related.js';
 import type { Rule } from './rule.js';
 
 const ID = 'led-current-unlimited';
@@ -97,9 +97,7 @@ function report(context: CheckContext, group: readonly Verdict[]): Finding {
     ...others.map((each) => ({ location: each.diode.element.location, message: `${each.diode.element.name}, in series with ${name}: the same current` })),
     ...cornerSources(context, worst.at.plan),
     // A MOSFET sink's source resistor is in the LEDs' chain too: it is named once, as what sets the current.
-    ...seriesResistors(context.topology, diode.element)
-      .filter((resistor) => resistor !== setter?.resistor)
-      .map((resistor) => ({ location: resistor.location, message: `${resistor.name} (${formatQuantity(resistor.resistance, 'Ω')}) in series` })),
+    ...seriesResistorsOf(context, diode).filter((entry) => entry.location !== setter?.resistor.location),
     ...(setter ? setterLocations(setter) : []),
   ];
   const thevenin = first.thevenin ?? (setter ? undefined : context.theveninView(diode, worst.at));
