@@ -92,7 +92,7 @@ function report(context: CheckContext, group: readonly Verdict[]): Finding {
   const rating = diode.ratings.if;
   const parts = partsInParallel(diode.element);
   const subject = others.length === 0 ? `LED ${name}` : `LEDs ${namesOf(group.map((each) => each.diode))} in series`;
-  const setter = first.fault === 'over-rating' ? currentSetterOf(context, diode, worst.at) : undefined;
+  const setter = first.fault === 'over-rating' ? currentSetterOf(context, diode, first.worst.at) : undefined;
   const related = [
     ...others.map((each) => ({ location: each.diode.element.location, message: `${each.diode.element.name}, in series with ${name}: the same current` })),
     ...cornerSources(context, worst.at.plan),
