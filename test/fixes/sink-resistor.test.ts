@@ -120,6 +120,48 @@ DAMB v12 k LEDAMB
   });
 });
 
+describe.runIf(ngspiceRuns)('a sink whose string barely fits its supply', () => {
+  // Five white LEDs (about 3.5 V each at 30 mA) and a 2.6 V emitter drop on a 20 V adapter:
+  // at 19 V (the low corner) the sink has no headroom left, at 21 V it regulates.
+  const netlist = `Display case: five white LEDs in a zener-referenced sink on a 20 V adapter
+V20 v20 0 DC 20
+RZ v20 ref 4.7k
+DZ 0 ref ZREF
+QS s5 ref e NPNSMALL
+RSET e 0 82
+D1 v20 s1 LEDW
+D2 s1 s2 LEDW
+D3 s2 s3 LEDW
+D4 s3 s4 LEDW
+D5 s4 s5 LEDW
+.model LEDW D(IS=1e-26 N=2.3 RS=6)
+.model ZREF D(IS=1e-14 N=1 RS=5 BV=3.3 IBV=1m)
+.model NPNSMALL NPN(IS=1e-14 BF=150 VAF=80)
+.end
+`;
+  const headroom = (text: string, supply: number) => {
+    const values = ngspiceValues(atSource(text, 'V20', supply), ['v(s5)', 'v(e)']);
+    return values.get('v(s5)')! - values.get('v(e)')!;
+  };
+
+  it('still gets its emitter resistor re-valued: saturated where it already was, regulating where it did, and the title says so', () => {
+    // ngspice 39 before the fix: saturated at the low corner, regulating at the high one.
+    expect(headroom(netlist, 20 * 0.95)).toBeLessThan(SATURATED_BELOW);
+    expect(headroom(netlist, 20 * 1.05)).toBeGreaterThan(SATURATED_BELOW);
+    const checked = checkWithFixes(netlist);
+    const finding = findingOf(checked, 'led-current-unlimited', 'D1');
+    expect(finding.message).toMatch(/the current sink QS sets it with its emitter resistor RSET/);
+    const fix = preferredFix(finding);
+    expect(fix.title).toMatch(/^Change RSET from 82 Ω to \d+ Ω \(LED [\d.]+ mA, resistor [\d.]+ mW, QS collector-emitter [\d.]+ m?V or more, saturated at 1 of 3 corners, as before\)$/);
+    const { files } = expectFixHolds(checked, finding, fix, ngspiceRuns);
+    // ngspice 39 after the fix: still out of saturation at the high corner, saturated at the low one as the title says, and the LEDs under the aim.
+    expect(headroom(files[MAIN_URI]!, 20 * 1.05)).toBeGreaterThan(SATURATED_BELOW);
+    expect(headroom(files[MAIN_URI]!, 20 * 0.95)).toBeLessThan(SATURATED_BELOW);
+    const deck = atSource(files[MAIN_URI]!, 'V20', 20 * 1.05).replace('D1 v20 s1 LEDW', 'VAM v20 va DC 0\nD1 va s1 LEDW');
+    expect(ngspiceValue(deck, 'i(vam)')).toBeLessThanOrEqual(AIMED);
+  });
+});
+
 describe.runIf(ngspiceRuns)('a series string with one resistor', () => {
   it('gets a resistor within one E24 step of the smallest that holds the aim (ngspice 39), though one LED alone sees too much voltage', () => {
     const netlist = `Shelf strip: three white LEDs in series on 12 V through one 47 ohm resistor

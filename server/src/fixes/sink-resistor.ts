@@ -61,34 +61,48 @@ export function currentSetterFixes(session: FixSession, request: LimitCurrent, f
   return passing ? [passing] : [];
 }
 
+/** The sink's headroom after the fix: the least collector-emitter (drain-source) voltage where it is active, and at how many corners it is not. */
+interface Headroom {
+  voltage: number;
+  word: string;
+  /** Corners at which it is saturated (each one at which it already was before the fix), and all the corners solved. */
+  saturated: number;
+  corners: number;
+}
+
 /**
- * The least collector-emitter (drain-source) voltage of the sink's transistor over the
- * re-check's corners; undefined when it has left its active region at a corner where it was
- * active before the fix.
+ * The sink's headroom over the re-check's corners; undefined when it has left its active region
+ * at a corner where it was active before the fix, or is active nowhere.
  */
-function leastHeadroom(verified: Verified, setter: CurrentSetter): { voltage: number; word: string } | undefined {
+function leastHeadroom(verified: Verified, setter: CurrentSetter): Headroom | undefined {
   const transistor = elementNamed(verified.circuit, setter.transistor);
   if (!transistor || (transistor.type !== 'Q' && transistor.type !== 'M')) return undefined;
   const wasActive = new Set(setter.activeCorners);
   let least: number | undefined;
-  verified.check.solves.forEach((result, index) => {
-    if (!result.ok) return;
+  let saturated = 0;
+  let corners = 0;
+  for (const [index, result] of verified.check.solves.entries()) {
+    if (!result.ok) continue;
+    corners++;
     const corner = verified.check.cornerPlans[index]?.corner.name;
-    const active = transistorActive(transistor, result.point);
-    if (corner !== undefined && wasActive.has(corner) && !active) least = Number.NEGATIVE_INFINITY;
+    if (!transistorActive(transistor, result.point)) {
+      if (corner === undefined || wasActive.has(corner)) return undefined;
+      saturated++;
+      continue;
+    }
     const voltage = headroomOf(transistor, result.point);
     if (voltage !== undefined && (least === undefined || voltage < least)) least = voltage;
-  });
-  if (least === undefined || least === Number.NEGATIVE_INFINITY) return undefined;
-  return { voltage: least, word: transistor.type === 'Q' ? 'collector-emitter' : 'drain-source' };
+  }
+  if (least === undefined) return undefined;
+  return { voltage: least, word: transistor.type === 'Q' ? 'collector-emitter' : 'drain-source', saturated, corners };
 }
 
 function headroomOf(transistor: Bjt | Mosfet, point: Parameters<typeof transistorActive>[1]): number | undefined {
   return transistor.type === 'Q' ? collectorEmitterVoltage(transistor, point) : drainSourceVoltage(transistor, point);
 }
 
-/** "Change RE from 15 Ω to 36 Ω (LED 13.1 mA, resistor 6.2 mW, QSINK collector-emitter 8.93 V or more)", with the re-check's numbers. */
-function title(verified: Verified, diode: string, resistor: Resistor, value: number, transistor: string, headroom: { voltage: number; word: string }): string {
+/** "Change RE from 15 Ω to 39 Ω (LED 13 mA, resistor 6.67 mW, QSINK collector-emitter 8.54 V or more)", with the re-check's numbers. */
+function title(verified: Verified, diode: string, resistor: Resistor, value: number, transistor: string, headroom: Headroom): string {
   const current = diodeExtremes(verified, diode)?.forwardCurrent;
   const power = resistorPower(verified, resistor.name);
   const numbers = [
@@ -96,5 +110,7 @@ function title(verified: Verified, diode: string, resistor: Resistor, value: num
     power !== undefined ? `resistor ${formatQuantity(power, 'W')}` : undefined,
     `${transistor} ${headroom.word} ${formatQuantity(headroom.voltage, 'V')} or more`,
   ].filter((each) => each !== undefined);
+  // A sink that had no headroom at some corners before the fix still has none there: said, not hidden.
+  if (headroom.saturated > 0) numbers.push(`saturated at ${headroom.saturated} of ${headroom.corners} corners, as before`);
   return `Change ${resistor.name} from ${formatQuantity(resistor.resistance, 'Ω')} to ${formatQuantity(value, 'Ω')} (${numbers.join(', ')})`;
 }
