@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { declareNgspiceGate } from '../support/ngspice.js';
 import { check, findingsOf, ngspiceValue, problems } from './support.js';
+import { MOSFET_BEACON, NPN_SINK } from '../support/led-sinks.js';
 
 const ngspiceRuns = declareNgspiceGate();
 
@@ -39,22 +40,6 @@ function withLine(netlist: string, name: string, replacement: string): string {
   return lines.join('\n');
 }
 
-// An aquarium hood: a blue LED in the collector of an NPN sink, its base held at two diode
-// drops, its emitter resistor fitted as 18 Ω: about (1.2 V − 0.65 V) / 18 Ω = 30 mA.
-const NPN_SINK = `Aquarium hood: blue LED in the collector of an NPN sink
-V9 v9 0 DC 9
-RB v9 b 4.7k
-DB1 b m SIG
-DB2 m 0 SIG
-Q1 k b e NPNSMALL
-RS e 0 18
-DBLUE v9 k LEDBLUE
-.model SIG D(IS=2n N=1.8 RS=0.5)
-.model LEDBLUE D(IS=1e-24 N=2.2 RS=5)
-.model NPNSMALL NPN(IS=2e-14 BF=200 VAF=60)
-.end
-`;
-
 describe.runIf(ngspiceRuns)('an LED in the collector of a current sink', () => {
   it('names the transistor and its emitter resistor as what sets the current, with ngspice 39 numbers', () => {
     const [finding, ...more] = findingsOf(check(NPN_SINK), 'led-current-unlimited');
@@ -82,18 +67,7 @@ describe.runIf(ngspiceRuns)('an LED in the collector of a current sink', () => {
   });
 
   it('an N-MOSFET sink regulated by an amplifier: the source resistor, at the reference voltage over its value', () => {
-    const netlist = `Warning beacon: amber LED in the drain of an N-MOSFET sink regulated by an amplifier
-V12 v12 0 DC 12
-VREF ref 0 DC 0.5
-*pnlint: supply VREF min=0.5 max=0.5
-EAMP g 0 ref s 100k
-M1 k g s s NPOWER L=2u W=400u
-RSNS s 0 10
-DAMB v12 k LEDAMB
-.model NPOWER NMOS(VTO=1.5 KP=50u LAMBDA=0.01)
-.model LEDAMB D(IS=1e-21 N=2 RS=3)
-.end
-`;
+    const netlist = MOSFET_BEACON;
     const [finding] = findingsOf(check(netlist), 'led-current-unlimited');
     expect(finding!.element).toBe('DAMB');
     expect(finding!.message).toMatch(/the current sink M1 sets it with its source resistor RSNS \(10 Ω, 500 mV across it\)/);

@@ -9,6 +9,7 @@
 import { describe, expect, it } from 'vitest';
 import { declareNgspiceGate } from '../support/ngspice.js';
 import { checkWithFixes, E24_PUBLISHED, expectFixHolds, findingOf, MAIN_URI, ngspiceValue, ngspiceValues, preferredFix, roundUpIn, tableValuesBetween } from './support.js';
+import { MOSFET_BEACON, NPN_SINK } from '../support/led-sinks.js';
 
 const ngspiceRuns = declareNgspiceGate();
 
@@ -28,21 +29,6 @@ function atSource(netlist: string, source: string, value: number): string {
 function quantity(text: string, unit: 'mA' | 'V'): number {
   return Number(text) * (unit === 'mA' ? 1e-3 : 1);
 }
-
-// An aquarium hood: a blue LED in the collector of an NPN sink set by an 18 Ω emitter resistor (about 30 mA).
-const NPN_SINK = `Aquarium hood: blue LED in the collector of an NPN sink
-V9 v9 0 DC 9
-RB v9 b 4.7k
-DB1 b m SIG
-DB2 m 0 SIG
-Q1 k b e NPNSMALL
-RS e 0 18
-DBLUE v9 k LEDBLUE
-.model SIG D(IS=2n N=1.8 RS=0.5)
-.model LEDBLUE D(IS=1e-24 N=2.2 RS=5)
-.model NPNSMALL NPN(IS=2e-14 BF=200 VAF=60)
-.end
-`;
 
 /** The netlist with an ammeter in the LED's lead and the supply at `supply`, as ngspice 39 solves it: LED current and the sink's collector-emitter voltage. */
 function sinkAt(netlist: string, supply: number): { current: number; collectorEmitter: number } {
@@ -90,18 +76,7 @@ describe.runIf(ngspiceRuns)('an LED whose current sink is set too high', () => {
   });
 
   it('an amplifier-regulated N-MOSFET sink: the source resistor becomes VREF / 14 mA rounded up in E24', () => {
-    const netlist = `Warning beacon: amber LED in the drain of an N-MOSFET sink regulated by an amplifier
-V12 v12 0 DC 12
-VREF ref 0 DC 0.5
-*pnlint: supply VREF min=0.5 max=0.5
-EAMP g 0 ref s 100k
-M1 k g s s NPOWER L=2u W=400u
-RSNS s 0 10
-DAMB v12 k LEDAMB
-.model NPOWER NMOS(VTO=1.5 KP=50u LAMBDA=0.01)
-.model LEDAMB D(IS=1e-21 N=2 RS=3)
-.end
-`;
+    const netlist = MOSFET_BEACON;
     const checked = checkWithFixes(netlist);
     const finding = findingOf(checked, 'led-current-unlimited', 'DAMB');
     const fix = preferredFix(finding);
