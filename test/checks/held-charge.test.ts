@@ -143,6 +143,17 @@ describe('budgets', () => {
     expect(result).toBeDefined();
   });
 
+  it('a board of doublers too big for the balance\'s solve budget says that its held charge did not settle', () => {
+    // Sixty doublers on one winding: more balancing than MAXIMUM_HELD_CHARGE_SOLVES allows (ours).
+    const stages = Array.from({ length: 60 }, (_, index) => `CP${index} sec m${index} 100u\nDA${index} 0 m${index} RECT\nDB${index} m${index} o${index} RECT\nCR${index} o${index} 0 220u\nRL${index} o${index} 0 10k`);
+    const text = `sixty doublers\nVS sec 0 SIN(0 30 50)\n${stages.join('\n')}\n${RECTIFIER}\n.end\n`;
+    const notes = check(text, NO_TOLERANCE).findings.filter((finding) => finding.rule === 'unsolved-circuit');
+    expect(notes.map((finding) => finding.message)).toEqual([expect.stringContaining('did not settle within the solve limits')]);
+    // The twenty of the case below settle: nothing said there.
+    const twenty = `twenty doublers\nVS sec 0 SIN(0 30 50)\n${stages.slice(0, 20).join('\n')}\n${RECTIFIER}\n.end\n`;
+    expect(check(twenty, NO_TOLERANCE).findings.filter((finding) => finding.rule === 'unsolved-circuit')).toEqual([]);
+  });
+
   it('twenty doublers on one winding settle within the solve budget', () => {
     const stages = Array.from({ length: 20 }, (_, index) => `CP${index} sec m${index} 100u\nDA${index} 0 m${index} RECT\nDB${index} m${index} o${index} RECT\nCR${index} o${index} 0 220u\nRL${index} o${index} 0 10k`);
     const text = `twenty doublers\nVS sec 0 SIN(0 30 50)\n${stages.join('\n')}\n${RECTIFIER}\n.end\n`;

@@ -256,6 +256,20 @@ export function checkWith(
       ),
     );
   }
+  if (held && !held.settled && !options.cancellation?.isCancellationRequested) {
+    const first = held.capacitors[0]?.capacitor ?? circuit.elements[0];
+    if (first) {
+      findings.push(
+        makeFinding(
+          'unsolved-circuit',
+          'info',
+          'The charge that capacitors hold between waveform peaks did not settle within the solve limits: reverse voltages that depend on it ' +
+            '(rectifiers with reservoir capacitors, voltage multipliers) may read low.',
+          first.location,
+        ),
+      );
+    }
+  }
   findings.push(...hazardCautions(circuit, solves));
 
   const shown = applySuppressions(findings, circuit, directives, config)
