@@ -8,7 +8,7 @@ import { declareNgspiceGate } from '../support/ngspice.js';
 import { elaborate } from '../../server/src/netlist/index.js';
 import { checkCircuit } from '../../server/src/checks/index.js';
 import { DEFAULT_SETTINGS } from '../../server/src/settings.js';
-import { createFixProvider } from '../../server/src/fixes/index.js';
+import { createFixProvider, MAXIMUM_VERIFICATIONS } from '../../server/src/fixes/index.js';
 import type { Finding } from '../../server/src/findings.js';
 import { applyFix, atSource, checkWithFixes, expectFixHolds, MAIN_URI, memoryReader, ngspiceValue } from './support.js';
 
@@ -195,5 +195,40 @@ describe('a rack of many lamps', () => {
     const checked = checkWithFixes(rack, { fixes: { cancellation: { isCancellationRequested: true } } });
     expect(checked.statistics.verifications).toBe(0);
     expect(checked.findings.every((finding) => finding.fixes.length === 0)).toBe(true);
+  });
+});
+
+describe('a panel of many LEDs on too small resistors', () => {
+  // Two hundred indicators, each on its own 10 Ω from the 5 V rail: every one far over the LED
+  // rule of thumb. Each resistor search is independent of the others (the rail holds them apart).
+  const lamps = 200;
+  const lines = [`panel of ${lamps} indicators`, 'V1 vcc 0 5'];
+  for (let lamp = 1; lamp <= lamps; lamp++) lines.push(`R${lamp} vcc a${lamp} 10`, `D${lamp} a${lamp} 0 LEDRED`);
+  const panel = [...lines, RED_LED, '.end', ''].join('\n');
+  const unlimited = (findings: readonly Finding[]) => findings.filter((each) => each.rule === 'led-current-unlimited');
+
+  it.runIf(ngspiceRuns)('gets every resistor fix within the default budget, the searches sharing their re-checks', () => {
+    const checked = checkWithFixes(panel);
+    const found = unlimited(checked.findings);
+    expect(found).toHaveLength(lamps);
+    expect(found.every((finding) => finding.fixes.some((fix) => fix.preferred))).toBe(true);
+    expect(checked.statistics.verifications).toBeLessThanOrEqual(4);
+    // The two ends of the board, applied alone: ngspice 39 at the max corner finds the LED under the rule of thumb.
+    for (const finding of [found[0]!, found[found.length - 1]!]) {
+      const fix = finding.fixes.find((each) => each.preferred)!;
+      const { files } = expectFixHolds(checked, finding, fix, ngspiceRuns);
+      const lamp = finding.element!.slice(1);
+      const probed = atSource(files[MAIN_URI]!, 'V1', 5.25).replace(`D${lamp} a${lamp} 0 LEDRED`, `VAM a${lamp} m${lamp} 0\nD${lamp} m${lamp} 0 LEDRED`);
+      expect(ngspiceValue(probed, 'i(vam)')).toBeLessThan(LED_RULE_OF_THUMB_AMPERES);
+    }
+  });
+
+  it('one at a time, the same budget runs out long before the last lamp', () => {
+    // Each fix costs a re-check of its own then, and MAXIMUM_VERIFICATIONS caps them per analysis.
+    const reader = memoryReader({ [MAIN_URI]: panel });
+    const circuit = elaborate(MAIN_URI, panel, reader);
+    const oneAtATime = checkCircuit(circuit, DEFAULT_SETTINGS, undefined, { fixProvider: createFixProvider(reader, undefined) });
+    const fixed = unlimited(oneAtATime.findings).filter((finding) => finding.fixes.some((fix) => fix.preferred));
+    expect(fixed.length).toBeLessThanOrEqual(MAXIMUM_VERIFICATIONS);
   });
 });

@@ -12,7 +12,7 @@ import type { Settings } from '../settings.js';
 import { flipDiodeCandidate } from './flip-diode.js';
 import { guardDiodeCandidate } from './guard-diode.js';
 import { ignoreFix, verifiedIgnore, verifiedIgnoreFixes } from './ignore.js';
-import { currentLimitFixes } from './series-resistor.js';
+import { currentLimitFixes, SeriesResistorSearch } from './series-resistor.js';
 import { verifyIndependent, type FixCandidate } from './together.js';
 import { FixSession, type FixOptions, type FixStatistics, type Verified } from './verify.js';
 import { zenerWindowFixes } from './zener-resistor.js';
@@ -50,6 +50,22 @@ export function fixesForRequest(session: FixSession, request: FixRequest, findin
       const fix = ignoreFix(session, finding, request.rule, request.element);
       return { fixes: fix && verifiedIgnore(session, fix, finding) ? [fix] : [] };
     }
+  }
+}
+
+/** Runs searches round by round: each round re-checks one candidate of every search still going, together where they are independent. */
+function searchTogether(session: FixSession, searches: readonly SeriesResistorSearch[]): void {
+  for (;;) {
+    const round = searches.flatMap((search) => {
+      const candidate = search.next();
+      return candidate ? [{ search, candidate }] : [];
+    });
+    if (round.length === 0) return;
+    const verdicts = verifyIndependent(
+      session,
+      round.map((each) => each.candidate),
+    );
+    round.forEach(({ search }, index) => search.take(verdicts[index]!));
   }
 }
 
@@ -163,7 +179,17 @@ export function attachVerifiedFixes(
       if (verdict.ok) slot.fixes.push(candidate.titled(verdict.verified));
       else if (verdict.reason === 'new-finding' && verdict.rechecked) slot.note = withheldNote(session, verdict.rechecked, kind);
     });
-    for (const { slot, request, finding } of searched) Object.assign(slot, fixesForRequest(session, request, finding, check.cornerPlans));
+    // Series resistors are searched value by value; the searches share their re-checks, one
+    // candidate from each per round, where their regions cannot see each other.
+    const resistorSearches: { slot: RequestedFixes; search: SeriesResistorSearch }[] = [];
+    for (const { slot, request, finding } of searched) {
+      if (request.kind === 'limit-current' && !request.currentSetter && session.canVerify()) {
+        const search = SeriesResistorSearch.start(session, request, finding, check.cornerPlans);
+        if (search) resistorSearches.push({ slot, search });
+      } else Object.assign(slot, fixesForRequest(session, request, finding, check.cornerPlans));
+    }
+    searchTogether(session, resistorSearches.map((each) => each.search));
+    for (const { slot, search } of resistorSearches) slot.fixes.push(...search.fixes());
   }
   const findings = check.findings.map((finding) => {
     const results = built.get(finding) ?? [];

@@ -24,7 +24,8 @@ import {
   RESISTOR_POWER_MARGIN,
   TARGET_REDUCTION,
 } from './values.js';
-import type { FixSession, Verified } from './verify.js';
+import type { FixCandidate } from './together.js';
+import type { FixSession, Verdict, Verified } from './verify.js';
 
 type LimitCurrent = Extract<FixRequest, { kind: 'limit-current' }>;
 
@@ -56,55 +57,116 @@ export interface SeriesResistorDesign {
 export function currentLimitFixes(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): Fix[] {
   // A current sink sets the current: its own resistor is the one to change (sink-resistor.ts).
   if (request.currentSetter) return currentSetterFixes(session, request, finding, plans);
-  const diode = elementNamed(session.circuit, request.diode);
-  const plan = planNamed(plans, request.governingCorner);
-  if (!diode || diode.type !== 'D' || !plan || !Number.isFinite(request.maximumCurrent) || !(request.maximumCurrent > 0)) return [];
-  const existing = request.seriesResistors.map((name) => elementNamed(session.circuit, name)).find((element): element is Resistor => element?.type === 'R');
-  const design = designSeriesResistor(session, diode, request, existing, plan, plans);
-  if (!design) return [];
-  const series = session.settings.preferredSeries;
-  // The first value that passes its re-check, kept in case no later one also meets the aimed current.
-  let passing: Fix | undefined;
-  // The last value that passed and met the aim, while a lower one is tried because the current fell far short.
-  let onAim: Fix | undefined;
-  let value = preferredValue(design.leastResistance, series, 'up');
-  for (let candidate = 0; value !== undefined && candidate < MAXIMUM_CANDIDATES_PER_FINDING; candidate++) {
+  const search = SeriesResistorSearch.start(session, request, finding, plans);
+  if (!search) return [];
+  for (let candidate = search.next(); candidate; candidate = search.next()) search.take(session.verify(candidate.edits, finding));
+  return search.fixes();
+}
+
+/**
+ * The search for an LED's series resistor, one candidate value at a time: `next` gives the
+ * edits to re-check, `take` its verdict, until `next` gives none; then `fixes`. Searches in
+ * regions that cannot see each other share their re-checks (provider.ts, together.ts).
+ */
+export class SeriesResistorSearch {
+  /** The first value that passes its re-check, kept in case no later one also meets the aimed current. */
+  private passing: Fix | undefined;
+  /** The last value that passed and met the aim, while a lower one is tried because the current fell far short. */
+  private onAim: Fix | undefined;
+  private value: number | undefined;
+  private candidates = 0;
+  private done = false;
+  private result: Fix[] = [];
+  private pending: { edits: TextEdit[]; resistorName: string; value: number } | undefined;
+
+  private constructor(
+    private readonly session: FixSession,
+    private readonly diode: Diode,
+    private readonly finding: Finding,
+    private readonly existing: Resistor | undefined,
+    private readonly design: SeriesResistorDesign,
+  ) {
+    this.value = preferredValue(design.leastResistance, session.settings.preferredSeries, 'up');
+  }
+
+  /** Undefined when no series resistor can be designed (the request's numbers or the circuit's Thevenin view rule it out). */
+  static start(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): SeriesResistorSearch | undefined {
+    const diode = elementNamed(session.circuit, request.diode);
+    const plan = planNamed(plans, request.governingCorner);
+    if (!diode || diode.type !== 'D' || !plan || !Number.isFinite(request.maximumCurrent) || !(request.maximumCurrent > 0)) return undefined;
+    const existing = request.seriesResistors.map((name) => elementNamed(session.circuit, name)).find((element): element is Resistor => element?.type === 'R');
+    const design = designSeriesResistor(session, diode, request, existing, plan, plans);
+    return design && new SeriesResistorSearch(session, diode, finding, existing, design);
+  }
+
+  /** The next candidate to re-check, or undefined when the search is over. */
+  next(): FixCandidate | undefined {
+    if (this.done || this.value === undefined || this.candidates >= MAXIMUM_CANDIDATES_PER_FINDING) return this.finish();
+    const value = this.value;
     let edits: TextEdit[] | undefined;
-    let resistorName: string;
-    if (existing) {
-      edits = changeResistorValue(session, existing, value);
-      resistorName = existing.name;
+    let resistorName = '';
+    if (this.existing) {
+      edits = changeResistorValue(this.session, this.existing, value);
+      resistorName = this.existing.name;
     } else {
-      const inserted = insertSeriesResistor(session, diode, value);
+      const inserted = insertSeriesResistor(this.session, this.diode, value);
       edits = inserted?.edits;
       resistorName = inserted?.name ?? '';
     }
-    if (!edits) break;
-    const verdict = session.verify(edits, finding);
-    if (!verdict.ok && (verdict.reason === 'budget' || verdict.reason === 'edit-failed')) break;
+    if (!edits) return this.finish();
+    this.candidates++;
+    this.pending = { edits, resistorName, value };
+    const candidateEdits = edits;
+    return {
+      element: this.diode,
+      target: this.finding,
+      edits: candidateEdits,
+      titled: (verified) => ({ title: title(verified, this.diode.name, resistorName, value, this.existing), preferred: true, edits: candidateEdits }),
+    };
+  }
+
+  /** The verdict on the candidate `next` gave. */
+  take(verdict: Verdict): void {
+    const pending = this.pending;
+    this.pending = undefined;
+    if (!pending || this.done) return;
+    const { design, session } = this;
+    const series = session.settings.preferredSeries;
+    if (!verdict.ok && (verdict.reason === 'budget' || verdict.reason === 'edit-failed')) return void this.finish();
     const rechecked = verdict.ok ? verdict.verified : verdict.rechecked;
-    const current = rechecked ? diodeExtremes(rechecked, diode.name)?.forwardCurrent : undefined;
+    const current = rechecked ? diodeExtremes(rechecked, this.diode.name)?.forwardCurrent : undefined;
     if (verdict.ok) {
-      const fix: Fix = { title: title(verdict.verified, diode.name, resistorName, value, existing), preferred: true, edits };
+      const fix: Fix = { title: title(verdict.verified, this.diode.name, pending.resistorName, pending.value, this.existing), preferred: true, edits: pending.edits };
       const meetsAim = current === undefined || current <= design.current * (1 + AIM_TOLERANCE);
-      if (!meetsAim && onAim) return [onAim]; // the lower value overshoots: keep the one that met the aim
+      if (!meetsAim && this.onAim) return void this.finish([this.onAim]); // the lower value overshoots: keep the one that met the aim
       if (meetsAim) {
         // Far short of the aim (the Thevenin view of one LED of a string leaves out the others' forward voltage): try lower once more.
-        const lower = current !== undefined && current < design.current * UNDERSHOOT ? preferredValue((value * current) / design.current, series, 'up') : undefined;
-        if (lower === undefined || !(lower < value)) return [fix];
-        onAim = fix;
-        value = lower;
-        continue;
+        const lower = current !== undefined && current < design.current * UNDERSHOOT ? preferredValue((pending.value * current) / design.current, series, 'up') : undefined;
+        if (lower === undefined || !(lower < pending.value)) return void this.finish([fix]);
+        this.onAim = fix;
+        this.value = lower;
+        return;
       }
-      passing ??= fix;
-    } else if (onAim) return [onAim];
+      this.passing ??= fix;
+    } else if (this.onAim) return void this.finish([this.onAim]);
     // Next: the next value up, or further when the current fell short by more (current about ∝ 1/R where the resistor dominates).
-    const nextUp = preferredValue(value * (1 + AIM_TOLERANCE), series, 'up');
-    const scaled = current !== undefined && current > design.current ? preferredValue((value * current) / design.current, series, 'up') : undefined;
-    value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
+    const nextUp = preferredValue(pending.value * (1 + AIM_TOLERANCE), series, 'up');
+    const scaled = current !== undefined && current > design.current ? preferredValue((pending.value * current) / design.current, series, 'up') : undefined;
+    this.value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
   }
-  if (onAim) return [onAim];
-  return passing ? [passing] : [];
+
+  /** The fix found: at most one. */
+  fixes(): Fix[] {
+    return this.done ? this.result : (this.finish(), this.result);
+  }
+
+  private finish(result?: Fix[]): undefined {
+    if (!this.done) {
+      this.done = true;
+      this.result = result ?? (this.onAim ? [this.onAim] : this.passing ? [this.passing] : []);
+    }
+    return undefined;
+  }
 }
 
 /** The value to start from: the least resistance, with the aimed current lowered while the supply leaves too little headroom. */
