@@ -9,7 +9,7 @@ import type { Bjt, Diode, Element, Mosfet, Resistor } from '../netlist/circuit.j
 import { mosfetParameters } from '../sim/devices/mosfet.js';
 import type { OperatingPoint } from '../sim/types.js';
 import type { CheckContext, CheckedDiode, DiodeAtCorner } from './context.js';
-import { currentNodes, joinedAt, resistivePathEnd, seriesChain, type Topology } from './topology.js';
+import { joinedAt, otherNode, resistivePathEnd, seriesString, type Topology } from './topology.js';
 
 /**
  * A bipolar transistor with less than this from collector to emitter is saturated and no
@@ -30,32 +30,6 @@ export const SENSITIVITY_STEP = 0.1;
  * that only trims a transistor driven by its base current much less).
  */
 export const SETTING_SENSITIVITY = 0.5;
-
-/** The two end nodes of a series chain of two-terminal parts, and the parts on it. */
-export interface SeriesString {
-  /** The parts in series, the element itself included, in the order met from its anode side. */
-  parts: Element[];
-  /** The node at each end of the chain (a rail, or a junction of more than two parts). */
-  ends: [string, string];
-}
-
-/** The element with whatever is in series with it on either side (two-terminal parts only). */
-export function seriesString(topology: Topology, element: Element): SeriesString {
-  const sides = element.nodes.slice(0, 2).map((node) => {
-    const chain = seriesChain(topology, element, node);
-    let end = node;
-    for (const part of chain) end = farNode(part, end) ?? end;
-    return { chain, end };
-  });
-  const [anodeSide, cathodeSide] = sides as [(typeof sides)[0], (typeof sides)[0]];
-  return { parts: [...[...anodeSide.chain].reverse(), element, ...cathodeSide.chain], ends: [anodeSide.end, cathodeSide.end] };
-}
-
-/** The other current-carrying terminal of a two-terminal part. */
-function farNode(element: Element, node: string): string | undefined {
-  const [first, second] = currentNodes(element);
-  return first === node ? second : first;
-}
 
 /** Each check's LED strings, by member: a string is walked once, not once per LED (rules ask for every LED). */
 const stringsOfCheck = new WeakMap<CheckContext, Map<Element, CheckedDiode[]>>();
@@ -122,12 +96,12 @@ function transistorsInString(topology: Topology, element: Element): (Bjt | Mosfe
   let node = element.nodes[1]!;
   for (const part of cathodeSide) {
     if (part.type === 'M' && part.nodes[0] === node) found.push(part);
-    node = farNode(part, node) ?? node;
+    node = otherNode(part, node) ?? node;
   }
   node = element.nodes[0]!;
   for (const part of [...anodeSide].reverse()) {
     if (part.type === 'M' && part.nodes[0] === node) found.push(part);
-    node = farNode(part, node) ?? node;
+    node = otherNode(part, node) ?? node;
   }
   for (const [index, end] of string.ends.entries()) {
     if (topology.rails.has(end)) continue;

@@ -102,7 +102,7 @@ export function joinedAt(topology: Topology, node: string, except: Element): { e
 }
 
 /** The other current-carrying terminal of a two-terminal path (a MOSFET's source for its drain, not its gate). */
-const otherNode = (element: Element, node: string) => {
+export const otherNode = (element: Element, node: string): string | undefined => {
   const [first, second] = currentNodes(element);
   return first === node ? second : first;
 };
@@ -159,14 +159,29 @@ export function bridgesInductor(topology: Topology, element: Element): boolean {
   return inductorBridging(topology, element) !== undefined;
 }
 
+/** The two end nodes of a series chain of two-terminal parts, and the parts on it. */
+export interface SeriesString {
+  /** The parts in series, the element itself included, in the order met from its anode side. */
+  parts: Element[];
+  /** The node at each end of the chain (a rail, or a junction of more than two parts). */
+  ends: [string, string];
+}
+
+/** The element with whatever is in series with it on either side (two-terminal parts only). */
+export function seriesString(topology: Topology, element: Element): SeriesString {
+  const sides = element.nodes.slice(0, 2).map((node) => {
+    const chain = seriesChain(topology, element, node);
+    let end = node;
+    for (const part of chain) end = otherNode(part, end) ?? end;
+    return { chain, end };
+  });
+  const [anodeSide, cathodeSide] = sides as [(typeof sides)[0], (typeof sides)[0]];
+  return { parts: [...[...anodeSide.chain].reverse(), element, ...cathodeSide.chain], ends: [anodeSide.end, cathodeSide.end] };
+}
+
 /** The two end nodes of an element's series chain: the element with whatever is in series with it on either side. */
 function chainEnds(topology: Topology, element: Element): [string, string] {
-  const [first, second] = element.nodes.slice(0, 2).map((node) => {
-    let end = node;
-    for (const next of seriesChain(topology, element, node)) end = otherNode(next, end) ?? end;
-    return end;
-  });
-  return [first!, second!];
+  return seriesString(topology, element).ends;
 }
 
 /** The two end nodes of each inductor's series chain (the coil with whatever is in series with it). */
