@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { declareNgspiceGate } from '../support/ngspice.js';
 import { check, findingsOf, ngspiceValue, problems } from './support.js';
-import { MOSFET_BEACON, NPN_SINK } from '../support/led-sinks.js';
+import { MOSFET_BEACON, NPN_SINK, shelfStrip } from '../support/led-sinks.js';
 
 const ngspiceRuns = declareNgspiceGate();
 
@@ -123,16 +123,7 @@ DLAMP a k LEDRED
 });
 
 describe.runIf(ngspiceRuns)('LEDs in one series string', () => {
-  const STRING = `Shelf strip: three white LEDs in series on 12 V through one 47 ohm resistor
-V12 v12 0 DC 12
-RLIM v12 a 47
-D1 a s1 LEDW
-D2 s1 s2 LEDW
-D3 s2 0 LEDW
-*pnlint: rating LEDW kind=led if=20m pd=60m
-.model LEDW D(IS=1e-26 N=2.3 RS=6)
-.end
-`;
+  const STRING = shelfStrip('if=20m pd=60m');
 
   it('are one over-current finding and one power finding, on the first LED, naming the others', () => {
     const result = check(STRING);

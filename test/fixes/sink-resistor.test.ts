@@ -9,7 +9,7 @@
 import { describe, expect, it } from 'vitest';
 import { declareNgspiceGate } from '../support/ngspice.js';
 import { checkWithFixes, E24_PUBLISHED, expectFixHolds, findingOf, MAIN_URI, ngspiceValue, ngspiceValues, preferredFix, roundUpIn, tableValuesBetween } from './support.js';
-import { MOSFET_BEACON, NPN_SINK } from '../support/led-sinks.js';
+import { MOSFET_BEACON, NPN_SINK, shelfStrip } from '../support/led-sinks.js';
 
 const ngspiceRuns = declareNgspiceGate();
 
@@ -139,16 +139,7 @@ D5 s4 s5 LEDW
 
 describe.runIf(ngspiceRuns)('a series string with one resistor', () => {
   it('gets a resistor within one E24 step of the smallest that holds the aim (ngspice 39), though one LED alone sees too much voltage', () => {
-    const netlist = `Shelf strip: three white LEDs in series on 12 V through one 47 ohm resistor
-V12 v12 0 DC 12
-RLIM v12 a 47
-D1 a s1 LEDW
-D2 s1 s2 LEDW
-D3 s2 0 LEDW
-*pnlint: rating LEDW kind=led if=20m
-.model LEDW D(IS=1e-26 N=2.3 RS=6)
-.end
-`;
+    const netlist = shelfStrip('if=20m');
     const checked = checkWithFixes(netlist);
     const fix = preferredFix(findingOf(checked, 'led-current-unlimited', 'D1'));
     const match = /^Change RLIM from 47 Ω to (\d+) Ω/.exec(fix.title);

@@ -1,4 +1,4 @@
-// LED current sinks shared by the sink tests of the checks and of the fixes: scenarios of
+// LED current sinks and strings shared by the sink tests of the checks and of the fixes: scenarios of
 // our own; their numbers are checked against ngspice 39 where they are used.
 
 // An aquarium hood: a blue LED in the collector of an NPN sink, its base held at two diode
@@ -30,3 +30,17 @@ DAMB v12 k LEDAMB
 .model LEDAMB D(IS=1e-21 N=2 RS=3)
 .end
 `;
+
+/** A shelf strip: three white LEDs in series on 12 V through one 47 Ω resistor, with the LED ratings given. */
+export function shelfStrip(ratings: string): string {
+  return `Shelf strip: three white LEDs in series on 12 V through one 47 ohm resistor
+V12 v12 0 DC 12
+RLIM v12 a 47
+D1 a s1 LEDW
+D2 s1 s2 LEDW
+D3 s2 0 LEDW
+*pnlint: rating LEDW kind=led ${ratings}
+.model LEDW D(IS=1e-26 N=2.3 RS=6)
+.end
+`;
+}
