@@ -131,6 +131,24 @@ describe('pnlint check --fix', () => {
   });
 });
 
+describe('pnlint check --fix on a large board', () => {
+  it('fixes every one of 120 LEDs on too small resistors in one run (more than the 50 rounds --fix may take)', () => {
+    const lamps = 120;
+    const lines = [`panel of ${lamps} indicators`, 'V1 vcc 0 DC 5'];
+    for (let lamp = 1; lamp <= lamps; lamp++) lines.push(`R${lamp} vcc a${lamp} 10`, `D${lamp} a${lamp} 0 DRED`);
+    const panel = [...lines, '.model DRED D(IS=1e-20 N=1.7 RS=2)', '.end', ''].join('\n');
+    const path = join(folder, 'panel.cir');
+    writeFileSync(path, panel);
+    const run = pnlint(['check', 'panel.cir', '--fix', '--format', 'json'], folder);
+    expect(run.code).toBe(0);
+    expect(JSON.parse(run.stdout).files[0].findings.filter((f: { rule: string }) => f.rule === 'led-current-unlimited')).toEqual([]);
+    // Every resistor re-valued (10 Ω on a 5 V rail is far too little for an LED: Ohm's law), no line added or lost.
+    const fixed = readFileSync(path, 'utf8').split('\n');
+    expect(fixed).toHaveLength(panel.split('\n').length);
+    expect(fixed.filter((line) => /^R\d+ vcc a\d+ 10$/.test(line))).toEqual([]);
+  });
+});
+
 describe('pnlint op', () => {
   it('prints every corner as JSON with node voltages, branch currents and diodes', () => {
     const run = pnlint(['op', 'limited.cir', '--format', 'json'], folder);
