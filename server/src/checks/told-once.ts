@@ -4,8 +4,9 @@
 //   (a guard diode across a reversed LED would leave it dark for good), since turning the
 //   diode around cures them too.
 // - A line inside a subcircuit is one line however many instances place it: the findings of
-//   its instances under one rule become one finding, about the first (the gravest), naming
-//   the others. Its fix edits that one line, which every instance reads.
+//   its instances that fare alike (one rule, the same message but for the instance's name)
+//   become one finding, about the first, naming the others. Its fix edits that one line,
+//   which every instance reads.
 import type { Element, SourceLocation } from '../netlist/circuit.js';
 import type { Finding } from '../findings.js';
 import type { FixRequest } from './fix-request.js';
@@ -13,8 +14,6 @@ import type { FixRequest } from './fix-request.js';
 const REVERSED_RULE = 'reversed-diode';
 /** Instances named in a merged finding's message; the rest are counted. */
 const INSTANCES_NAMED = 3;
-
-const GRAVITY: Readonly<Record<Finding['severity'], number>> = { info: 0, warning: 1, error: 2 };
 
 export interface ToldOnce {
   findings: Finding[];
@@ -58,7 +57,10 @@ function mergeInstances(findings: readonly Finding[], fixRequests: readonly { fi
     const element = finding.element === undefined ? undefined : elementNamed(finding.element);
     if (!element || element.instances.length === 0) return undefined;
     const { uri, range } = finding.location;
-    return `${finding.rule}|${uri}|${range.start.offset}|${range.end.offset}`;
+    // Only instances that fare alike: the same message once the instance's own name is taken out.
+    // Instances whose parameters make them differ keep a finding each.
+    const message = finding.message.split(finding.element!).join('\u0000');
+    return `${finding.rule}|${uri}|${range.start.offset}|${range.end.offset}|${finding.severity}|${message}`;
   };
   for (const finding of findings) {
     const key = keyOf(finding);
@@ -70,7 +72,7 @@ function mergeInstances(findings: readonly Finding[], fixRequests: readonly { fi
   const replaced = new Map<Finding, Finding | undefined>();
   for (const group of groups.values()) {
     if (group.length < 2) continue;
-    const first = group.reduce((best, each) => (GRAVITY[each.severity] > GRAVITY[best.severity] ? each : best));
+    const first = group[0]!;
     const others = group.filter((each) => each !== first);
     const named = others.slice(0, INSTANCES_NAMED).map((each) => each.element!);
     const more = others.length - named.length;
