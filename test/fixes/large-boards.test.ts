@@ -232,3 +232,29 @@ describe('a panel of many LEDs on too small resistors', () => {
     expect(fixed.length).toBeLessThanOrEqual(MAXIMUM_VERIFICATIONS);
   });
 });
+
+describe('a board of many starved zener references', () => {
+  // Sixty shunt references, each fed from 12 V through 4.7 kΩ into a 2 kΩ load: (12 − 5.1) V / 4.7 kΩ
+  // = 1.47 mA, less than the load's 2.55 mA (Ohm's law), so each zener starves below its 1 mA knee.
+  const references = 60;
+  const lines = [`bias rails: ${references} zener references`, 'V12 v12 0 DC 12', '*pnlint: rating ZREF kind=zener vz=5.1 izk=1m pd=500m'];
+  for (let each = 1; each <= references; each++) lines.push(`RF${each} v12 z${each} 4.7k`, `DZ${each} 0 z${each} ZREF`, `RL${each} z${each} 0 2k`);
+  const board = [...lines, '.model ZREF D(IS=1e-14 N=1 RS=2 BV=5.1 IBV=5m)', '.end', ''].join('\n');
+  const starved = (findings: readonly Finding[]) => findings.filter((each) => each.rule === 'zener-underbiased');
+
+  it('gets every feed-resistor fix within the default budget, the searches sharing their re-checks', () => {
+    const checked = checkWithFixes(board);
+    const found = starved(checked.findings);
+    expect(found).toHaveLength(references);
+    expect(found.every((finding) => finding.fixes.some((fix) => fix.preferred))).toBe(true);
+    expect(checked.statistics.verifications).toBeLessThanOrEqual(4);
+    // The first and the last, applied alone, hold (and ngspice 39 still solves the board).
+    for (const finding of [found[0]!, found[found.length - 1]!]) expectFixHolds(checked, finding, finding.fixes.find((fix) => fix.preferred)!, ngspiceRuns);
+  });
+
+  it('one at a time, the re-checks run out first', () => {
+    const reader = memoryReader({ [MAIN_URI]: board });
+    const oneAtATime = checkCircuit(elaborate(MAIN_URI, board, reader), DEFAULT_SETTINGS, undefined, { fixProvider: createFixProvider(reader, undefined) });
+    expect(starved(oneAtATime.findings).filter((finding) => finding.fixes.some((fix) => fix.preferred)).length).toBeLessThanOrEqual(MAXIMUM_VERIFICATIONS);
+  });
+});

@@ -14,8 +14,8 @@ import { guardDiodeCandidate } from './guard-diode.js';
 import { ignoreFix, verifiedIgnore, verifiedIgnoreFixes } from './ignore.js';
 import { currentLimitFixes, SeriesResistorSearch } from './series-resistor.js';
 import { verifyIndependent, type FixCandidate } from './together.js';
-import { FixSession, type FixOptions, type FixStatistics, type Verified } from './verify.js';
-import { zenerWindowFixes } from './zener-resistor.js';
+import { FixSession, type FixOptions, type FixStatistics, type Verdict, type Verified } from './verify.js';
+import { zenerWindowFixes, ZenerWindowSearch } from './zener-resistor.js';
 
 /** Most urgent first. */
 const SEVERITIES: readonly Finding['severity'][] = ['error', 'warning', 'info'];
@@ -53,8 +53,14 @@ export function fixesForRequest(session: FixSession, request: FixRequest, findin
   }
 }
 
+/** A fix searched value by value: the next candidate to re-check, then its verdict, until there is none. */
+interface ValueSearch {
+  next(): FixCandidate | undefined;
+  take(verdict: Verdict): void;
+}
+
 /** Runs searches round by round: each round re-checks one candidate of every search still going, together where they are independent. */
-function searchTogether(session: FixSession, searches: readonly SeriesResistorSearch[]): void {
+function searchTogether(session: FixSession, searches: readonly ValueSearch[]): void {
   for (;;) {
     const round = searches.flatMap((search) => {
       const candidate = search.next();
@@ -179,17 +185,21 @@ export function attachVerifiedFixes(
       if (verdict.ok) slot.fixes.push(candidate.titled(verdict.verified));
       else if (verdict.reason === 'new-finding' && verdict.rechecked) slot.note = withheldNote(session, verdict.rechecked, kind);
     });
-    // Series resistors are searched value by value; the searches share their re-checks, one
-    // candidate from each per round, where their regions cannot see each other.
-    const resistorSearches: { slot: RequestedFixes; search: SeriesResistorSearch }[] = [];
+    // Series and zener feed resistors are searched value by value; the searches share their
+    // re-checks, one candidate from each per round, where their regions cannot see each other.
+    const searches: { search: ValueSearch; settle: () => void }[] = [];
     for (const { slot, request, finding } of searched) {
       if (request.kind === 'limit-current' && !request.currentSetter && session.canVerify()) {
         const search = SeriesResistorSearch.start(session, request, finding, check.cornerPlans);
-        if (search) resistorSearches.push({ slot, search });
+        if (search) searches.push({ search, settle: () => slot.fixes.push(...search.fixes()) });
+      } else if (request.kind === 'zener-window' && session.canVerify()) {
+        const started = ZenerWindowSearch.start(session, request, finding, check.cornerPlans);
+        if (started instanceof ZenerWindowSearch) searches.push({ search: started, settle: () => Object.assign(slot, started.result()) });
+        else Object.assign(slot, started);
       } else Object.assign(slot, fixesForRequest(session, request, finding, check.cornerPlans));
     }
-    searchTogether(session, resistorSearches.map((each) => each.search));
-    for (const { slot, search } of resistorSearches) slot.fixes.push(...search.fixes());
+    searchTogether(session, searches.map((each) => each.search));
+    for (const { settle } of searches) settle();
   }
   const findings = check.findings.map((finding) => {
     const results = built.get(finding) ?? [];

@@ -13,7 +13,7 @@ import type { CornerPlan, FixRequest } from '../checks/index.js';
 import { atCorner } from '../checks/context.js';
 import { buildTopology, currentNodes } from '../checks/topology.js';
 import type { Circuit, Diode, Resistor } from '../netlist/circuit.js';
-import type { Finding, Fix } from '../findings.js';
+import type { Finding, Fix, TextEdit } from '../findings.js';
 import { formatPercent, formatQuantity } from '../units.js';
 import { readDirectives } from '../checks/directives.js';
 import { diodeRatings, resistorRatings } from '../checks/ratings.js';
@@ -23,7 +23,8 @@ import { diodeVoltageAt, measureResistorResponse, type ResistorResponse } from '
 import { elementNamed, resistorPower, reverseCurrentRange, solveOptionsOf } from './readings.js';
 import { changeResistorValue } from './resistor-lines.js';
 import { MAXIMUM_CANDIDATES_PER_FINDING, preferredValuesFromTop, RESISTOR_POWER_MARGIN, toleranceMargin, type ResistanceWindow } from './values.js';
-import type { FixSession } from './verify.js';
+import type { FixCandidate } from './together.js';
+import type { FixSession, Verdict, Verified } from './verify.js';
 
 type ZenerWindowRequest = Extract<FixRequest, { kind: 'zener-window' }>;
 
@@ -44,58 +45,113 @@ export interface ZenerWindow extends ResistanceWindow {
 }
 
 export function zenerWindowFixes(session: FixSession, request: ZenerWindowRequest, finding: Finding, plans: readonly CornerPlan[]): ZenerFixes {
-  const zener = elementNamed(session.circuit, request.diode);
-  if (!zener || zener.type !== 'D') return { fixes: [] };
-  const window = zenerWindow(session, zener, request, plans);
-  if (!window || !Number.isFinite(window.maximum)) return { fixes: [] };
-  const name = window.resistor.name;
-  const range = describeWindow(window, typicalBounds(session, zener), Number.isFinite(request.maximumCurrent));
-  if (!(window.maximum > 0) || window.maximum < window.minimum) {
-    return { fixes: [], note: ` No value of ${name} can fix this: ${noWindowReason(window, plans, request)}` };
-  }
-  const directives = readDirectives(session.circuit);
-  const resistorRating = resistorRatings(window.resistor, session.settings, directives, session.config);
-  const tolerance = toleranceMargin(resistorRating.tolerance?.value, session.settings.preferredSeries);
-  const values = preferredValuesFromTop(window, tolerance, session.settings.preferredSeries, MAXIMUM_CANDIDATES_PER_FINDING);
-  if (values.length === 0) {
-    return {
-      fixes: [],
-      note: ` ${name} would have to lie within ${range}, and no ${session.settings.preferredSeries} value stays inside it at ±${formatPercent(tolerance)}.`,
-    };
-  }
-  const powerRating = resistorRating.power.value;
-  let overPower: number | undefined;
-  for (const value of values) {
-    const edits = changeResistorValue(session, window.resistor, value);
-    if (!edits) return { fixes: [] };
-    const verdict = session.verify(edits, finding);
-    if (verdict.ok) {
-      const currents = reverseCurrentRange(verdict.verified, zener.name);
-      const power = resistorPower(verdict.verified, name);
-      // The checks see a resistor's power only when it is strictly in series; a feed resistor shared with the load is checked here.
-      if (power === undefined || power > RESISTOR_POWER_MARGIN * powerRating) {
-        session.statistics.rejected++;
-        overPower = power;
-        continue;
-      }
-      const numbers = [
-        currents ? `zener ${formatQuantity(currents.least, 'A')} to ${formatQuantity(currents.largest, 'A')}` : undefined,
-        power !== undefined ? `resistor ${formatQuantity(power, 'W')}` : undefined,
-        `window ${range}`,
-      ].filter((each) => each !== undefined);
+  const started = ZenerWindowSearch.start(session, request, finding, plans);
+  if (!(started instanceof ZenerWindowSearch)) return started;
+  for (let candidate = started.next(); candidate; candidate = started.next()) started.take(session.verify(candidate.edits, finding));
+  return started.result();
+}
+
+/**
+ * The search for a zener's feed resistor value, from the top of its window down, one value
+ * at a time: `next` gives the edits to re-check, `take` its verdict, until `next` gives none;
+ * then `result`. Searches in regions that cannot see each other share their re-checks
+ * (provider.ts, together.ts).
+ */
+export class ZenerWindowSearch {
+  private index = 0;
+  private overPower: number | undefined;
+  private done: ZenerFixes | undefined;
+  private pending: { edits: TextEdit[]; value: number } | undefined;
+
+  private constructor(
+    private readonly session: FixSession,
+    private readonly zener: Diode,
+    private readonly finding: Finding,
+    private readonly window: ZenerWindow,
+    private readonly values: readonly number[],
+    private readonly range: string,
+    private readonly powerRating: number,
+  ) {}
+
+  /** A search, or the result at once when no value can be tried (the message's note says why). */
+  static start(session: FixSession, request: ZenerWindowRequest, finding: Finding, plans: readonly CornerPlan[]): ZenerWindowSearch | ZenerFixes {
+    const zener = elementNamed(session.circuit, request.diode);
+    if (!zener || zener.type !== 'D') return { fixes: [] };
+    const window = zenerWindow(session, zener, request, plans);
+    if (!window || !Number.isFinite(window.maximum)) return { fixes: [] };
+    const name = window.resistor.name;
+    const range = describeWindow(window, typicalBounds(session, zener), Number.isFinite(request.maximumCurrent));
+    if (!(window.maximum > 0) || window.maximum < window.minimum) {
+      return { fixes: [], note: ` No value of ${name} can fix this: ${noWindowReason(window, plans, request)}` };
+    }
+    const directives = readDirectives(session.circuit);
+    const resistorRating = resistorRatings(window.resistor, session.settings, directives, session.config);
+    const tolerance = toleranceMargin(resistorRating.tolerance?.value, session.settings.preferredSeries);
+    const values = preferredValuesFromTop(window, tolerance, session.settings.preferredSeries, MAXIMUM_CANDIDATES_PER_FINDING);
+    if (values.length === 0) {
       return {
-        fixes: [{ title: `Change ${name} from ${formatQuantity(window.resistor.resistance, 'Ω')} to ${formatQuantity(value, 'Ω')} (${numbers.join(', ')})`, preferred: true, edits }],
+        fixes: [],
+        note: ` ${name} would have to lie within ${range}, and no ${session.settings.preferredSeries} value stays inside it at ±${formatPercent(tolerance)}.`,
       };
     }
-    if (verdict.reason === 'budget' || verdict.reason === 'edit-failed') break;
+    return new ZenerWindowSearch(session, zener, finding, window, values, range, resistorRating.power.value);
   }
-  if (overPower !== undefined) {
-    return {
-      fixes: [],
-      note: ` A value of ${name} inside its window (${range}) would dissipate ${formatQuantity(overPower, 'W')}, more than ${formatPercent(RESISTOR_POWER_MARGIN)} of its ${formatQuantity(powerRating, 'W')} rating: it needs a larger resistor part.`,
-    };
+
+  /** The next candidate to re-check, or undefined when the search is over. */
+  next(): FixCandidate | undefined {
+    if (this.done || this.index >= this.values.length) return undefined;
+    const value = this.values[this.index++]!;
+    const edits = changeResistorValue(this.session, this.window.resistor, value);
+    if (!edits) {
+      this.done = { fixes: [] };
+      return undefined;
+    }
+    this.pending = { edits, value };
+    return { element: this.window.resistor, target: this.finding, edits, titled: (verified) => this.fixFor(verified, value, edits) };
   }
-  return { fixes: [] };
+
+  /** The verdict on the candidate `next` gave. */
+  take(verdict: Verdict): void {
+    const pending = this.pending;
+    this.pending = undefined;
+    if (!pending || this.done) return;
+    if (verdict.ok) {
+      const power = resistorPower(verdict.verified, this.window.resistor.name);
+      // The checks see a resistor's power only when it is strictly in series; a feed resistor shared with the load is checked here.
+      if (power === undefined || power > RESISTOR_POWER_MARGIN * this.powerRating) {
+        this.session.statistics.rejected++;
+        this.overPower = power;
+        return;
+      }
+      this.done = { fixes: [this.fixFor(verdict.verified, pending.value, pending.edits)] };
+      return;
+    }
+    if (verdict.reason === 'budget' || verdict.reason === 'edit-failed') this.index = this.values.length;
+  }
+
+  result(): ZenerFixes {
+    if (this.done) return this.done;
+    const name = this.window.resistor.name;
+    if (this.overPower !== undefined) {
+      return {
+        fixes: [],
+        note: ` A value of ${name} inside its window (${this.range}) would dissipate ${formatQuantity(this.overPower, 'W')}, more than ${formatPercent(RESISTOR_POWER_MARGIN)} of its ${formatQuantity(this.powerRating, 'W')} rating: it needs a larger resistor part.`,
+      };
+    }
+    return { fixes: [] };
+  }
+
+  private fixFor(verified: Verified, value: number, edits: TextEdit[]): Fix {
+    const name = this.window.resistor.name;
+    const currents = reverseCurrentRange(verified, this.zener.name);
+    const power = resistorPower(verified, name);
+    const numbers = [
+      currents ? `zener ${formatQuantity(currents.least, 'A')} to ${formatQuantity(currents.largest, 'A')}` : undefined,
+      power !== undefined ? `resistor ${formatQuantity(power, 'W')}` : undefined,
+      `window ${this.range}`,
+    ].filter((each) => each !== undefined);
+    return { title: `Change ${name} from ${formatQuantity(this.window.resistor.resistance, 'Ω')} to ${formatQuantity(value, 'Ω')} (${numbers.join(', ')})`, preferred: true, edits };
+  }
 }
 
 /**
