@@ -155,3 +155,28 @@ describe.runIf(ngspiceRuns)('a series string with one resistor', () => {
     expect(chosen).toBeLessThanOrEqual(smallest + 1);
   });
 });
+
+describe.runIf(ngspiceRuns)('a board of many sinks set too high', () => {
+  it('gets every emitter-resistor fix within the default budget, the searches sharing their re-checks', () => {
+    // Forty copies of the aquarium hood's channel on one 9 V rail: the rail and ground hold them apart.
+    const channels = 40;
+    const body = NPN_SINK.split('\n').filter((line) => /^(RB|DB1|DB2|Q1|RS|DBLUE) /.test(line));
+    const lines = ['forty sink channels', 'V9 v9 0 DC 9'];
+    for (let channel = 1; channel <= channels; channel++) {
+      for (const line of body) lines.push(line.replace(/^(\S+)/, `$1_${channel}`).replace(/\b([bmke])\b/g, `$1${channel}`));
+    }
+    const models = NPN_SINK.split('\n').filter((line) => line.startsWith('.model'));
+    const board = [...lines, ...models, '.end', ''].join('\n');
+    const checked = checkWithFixes(board);
+    const found = checked.findings.filter((each) => each.rule === 'led-current-unlimited');
+    expect(found).toHaveLength(channels);
+    const titles = found.map((finding) => finding.fixes.find((fix) => fix.preferred)?.title);
+    expect(titles.every((title) => title?.startsWith('Change RS_'))).toBe(true);
+    expect(checked.statistics.verifications).toBeLessThanOrEqual(6);
+    // The first, applied alone: under the aim at the max corner in ngspice 39.
+    const { files } = expectFixHolds(checked, found[0]!, found[0]!.fixes.find((fix) => fix.preferred)!, ngspiceRuns);
+    const probed = files[MAIN_URI]!.replace('V9 v9 0 DC 9', 'V9 v9 0 DC 9.45').replace(/^DBLUE_1 v9 k1 LEDBLUE$/m, 'VAM v9 va 0\nDBLUE_1 va k1 LEDBLUE');
+    expect(probed).toContain('VAM v9 va 0');
+    expect(ngspiceValue(probed, 'i(vam)')).toBeLessThanOrEqual(AIMED * 1.001);
+  });
+});

@@ -13,6 +13,7 @@ import { flipDiodeCandidate } from './flip-diode.js';
 import { guardDiodeCandidate } from './guard-diode.js';
 import { ignoreFix, verifiedIgnore, verifiedIgnoreFixes } from './ignore.js';
 import { currentLimitFixes, SeriesResistorSearch } from './series-resistor.js';
+import { SinkResistorSearch } from './sink-resistor.js';
 import { verifyIndependent, type FixCandidate } from './together.js';
 import { FixSession, type FixOptions, type FixStatistics, type Verdict, type Verified } from './verify.js';
 import { zenerWindowFixes, ZenerWindowSearch } from './zener-resistor.js';
@@ -185,12 +186,13 @@ export function attachVerifiedFixes(
       if (verdict.ok) slot.fixes.push(candidate.titled(verdict.verified));
       else if (verdict.reason === 'new-finding' && verdict.rechecked) slot.note = withheldNote(session, verdict.rechecked, kind);
     });
-    // Series and zener feed resistors are searched value by value; the searches share their
+    // Series, sink and zener feed resistors are searched value by value; the searches share their
     // re-checks, one candidate from each per round, where their regions cannot see each other.
     const searches: { search: ValueSearch; settle: () => void }[] = [];
     for (const { slot, request, finding } of searched) {
-      if (request.kind === 'limit-current' && !request.currentSetter && session.canVerify()) {
-        const search = SeriesResistorSearch.start(session, request, finding, check.cornerPlans);
+      if (request.kind === 'limit-current' && session.canVerify()) {
+        // A current sink sets the current: its own resistor is the one to change (sink-resistor.ts).
+        const search = request.currentSetter ? SinkResistorSearch.start(session, request, finding, check.cornerPlans) : SeriesResistorSearch.start(session, request, finding, check.cornerPlans);
         if (search) searches.push({ search, settle: () => slot.fixes.push(...search.fixes()) });
       } else if (request.kind === 'zener-window' && session.canVerify()) {
         const started = ZenerWindowSearch.start(session, request, finding, check.cornerPlans);

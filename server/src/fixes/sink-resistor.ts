@@ -10,55 +10,123 @@
 import type { CornerPlan, FixRequest } from '../checks/index.js';
 import { collectorEmitterVoltage, drainSourceVoltage, transistorActive } from '../checks/current-sink.js';
 import type { Bjt, Mosfet, Resistor } from '../netlist/circuit.js';
-import type { Finding, Fix } from '../findings.js';
+import type { Finding, Fix, TextEdit } from '../findings.js';
 import { preferredValue } from '../preferred.js';
 import { formatQuantity } from '../units.js';
 import { diodeExtremes, elementNamed, lowestScale, planNamed, resistorPower, scaleAt } from './readings.js';
 import { changeResistorValue } from './resistor-lines.js';
 import { AIM_TOLERANCE } from './series-resistor.js';
 import { LED_CURRENT_MARGIN, MAXIMUM_CANDIDATES_PER_FINDING } from './values.js';
-import type { FixSession, Verified } from './verify.js';
+import type { FixCandidate } from './together.js';
+import type { FixSession, Verdict, Verified } from './verify.js';
 
 type LimitCurrent = Extract<FixRequest, { kind: 'limit-current' }>;
 type CurrentSetter = NonNullable<LimitCurrent['currentSetter']>;
 
 export function currentSetterFixes(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): Fix[] {
-  const setter = request.currentSetter;
-  if (!setter) return [];
-  const resistor = elementNamed(session.circuit, setter.resistor);
-  const plan = planNamed(plans, request.governingCorner);
-  if (!resistor || resistor.type !== 'R' || !plan || !Number.isFinite(request.maximumCurrent) || !(setter.sensitivity < 0) || !(setter.current > 0)) return [];
-  const aimed = request.maximumCurrent * LED_CURRENT_MARGIN;
-  // At the governing corner the resistor had its corner's value; the new one must hold at its lowest.
-  const atCorner = resistor.resistance * scaleAt(plan, resistor.name);
-  const least = (atCorner * Math.pow(setter.current / aimed, -1 / setter.sensitivity)) / lowestScale(plans, resistor.name);
-  const series = session.settings.preferredSeries;
-  let value = preferredValue(least, series, 'up');
-  let passing: Fix | undefined;
-  for (let candidate = 0; value !== undefined && candidate < MAXIMUM_CANDIDATES_PER_FINDING; candidate++) {
-    const edits = changeResistorValue(session, resistor, value);
-    if (!edits) break;
-    const verdict = session.verify(edits, finding);
-    if (!verdict.ok && (verdict.reason === 'budget' || verdict.reason === 'edit-failed')) break;
+  const search = SinkResistorSearch.start(session, request, finding, plans);
+  if (!search) return [];
+  for (let candidate = search.next(); candidate; candidate = search.next()) search.take(session.verify(candidate.edits, finding));
+  return search.fixes();
+}
+
+/**
+ * The search for a sink's resistor value, one candidate at a time: `next` gives the edits to
+ * re-check, `take` its verdict, until `next` gives none; then `fixes`. Searches in regions
+ * that cannot see each other share their re-checks (provider.ts, together.ts).
+ */
+export class SinkResistorSearch {
+  private value: number | undefined;
+  private candidates = 0;
+  private passing: Fix | undefined;
+  private found: Fix | undefined;
+  private over = false;
+  private pending: { edits: TextEdit[]; value: number } | undefined;
+
+  private constructor(
+    private readonly session: FixSession,
+    private readonly request: LimitCurrent,
+    private readonly setter: CurrentSetter,
+    private readonly resistor: Resistor,
+    private readonly finding: Finding,
+    private readonly aimed: number,
+    least: number,
+  ) {
+    this.value = preferredValue(least, session.settings.preferredSeries, 'up');
+  }
+
+  static start(session: FixSession, request: LimitCurrent, finding: Finding, plans: readonly CornerPlan[]): SinkResistorSearch | undefined {
+    const setter = request.currentSetter;
+    if (!setter) return undefined;
+    const resistor = elementNamed(session.circuit, setter.resistor);
+    const plan = planNamed(plans, request.governingCorner);
+    if (!resistor || resistor.type !== 'R' || !plan || !Number.isFinite(request.maximumCurrent) || !(setter.sensitivity < 0) || !(setter.current > 0)) return undefined;
+    const aimed = request.maximumCurrent * LED_CURRENT_MARGIN;
+    // At the governing corner the resistor had its corner's value; the new one must hold at its lowest.
+    const atCorner = resistor.resistance * scaleAt(plan, resistor.name);
+    const least = (atCorner * Math.pow(setter.current / aimed, -1 / setter.sensitivity)) / lowestScale(plans, resistor.name);
+    return new SinkResistorSearch(session, request, setter, resistor, finding, aimed, least);
+  }
+
+  /** The next candidate to re-check, or undefined when the search is over. */
+  next(): FixCandidate | undefined {
+    if (this.over || this.value === undefined || this.candidates >= MAXIMUM_CANDIDATES_PER_FINDING) return undefined;
+    const value = this.value;
+    const edits = changeResistorValue(this.session, this.resistor, value);
+    if (!edits) {
+      this.over = true;
+      return undefined;
+    }
+    this.candidates++;
+    this.pending = { edits, value };
+    return { element: this.resistor, target: this.finding, edits, titled: (verified) => this.fixFor(verified, value, edits) };
+  }
+
+  /** The verdict on the candidate `next` gave. */
+  take(verdict: Verdict): void {
+    const pending = this.pending;
+    this.pending = undefined;
+    if (!pending || this.over) return;
+    const { session, setter, aimed } = this;
+    if (!verdict.ok && (verdict.reason === 'budget' || verdict.reason === 'edit-failed')) {
+      this.over = true;
+      return;
+    }
     const rechecked = verdict.ok ? verdict.verified : verdict.rechecked;
-    const current = rechecked ? diodeExtremes(rechecked, request.diode)?.forwardCurrent : undefined;
+    const current = rechecked ? diodeExtremes(rechecked, this.request.diode)?.forwardCurrent : undefined;
     if (verdict.ok) {
       const headroom = leastHeadroom(verdict.verified, setter);
       if (headroom === undefined) {
         // The re-check passed, but the sink no longer regulates somewhere it did: that defeats the design.
         session.statistics.rejected++;
       } else {
-        const fix: Fix = { title: title(verdict.verified, request.diode, resistor, value, setter.transistor, headroom), preferred: true, edits };
-        if (current === undefined || current <= aimed * (1 + AIM_TOLERANCE)) return [fix];
-        passing ??= fix;
+        const fix = this.fixFor(verdict.verified, pending.value, pending.edits);
+        if (current === undefined || current <= aimed * (1 + AIM_TOLERANCE)) {
+          this.found = fix;
+          this.over = true;
+          return;
+        }
+        this.passing ??= fix;
       }
     }
     // Next: the next value up, or further when the current is still high (I ∝ R^s).
-    const nextUp = preferredValue(value * (1 + AIM_TOLERANCE), series, 'up');
-    const scaled = current !== undefined && current > aimed ? preferredValue(value * Math.pow(current / aimed, -1 / setter.sensitivity), series, 'up') : undefined;
-    value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
+    const series = session.settings.preferredSeries;
+    const nextUp = preferredValue(pending.value * (1 + AIM_TOLERANCE), series, 'up');
+    const scaled = current !== undefined && current > aimed ? preferredValue(pending.value * Math.pow(current / aimed, -1 / setter.sensitivity), series, 'up') : undefined;
+    this.value = nextUp !== undefined && scaled !== undefined ? Math.max(nextUp, scaled) : nextUp;
   }
-  return passing ? [passing] : [];
+
+  /** The fix found: at most one. */
+  fixes(): Fix[] {
+    const fix = this.found ?? this.passing;
+    return fix ? [fix] : [];
+  }
+
+  private fixFor(verified: Verified, value: number, edits: TextEdit[]): Fix {
+    const headroom = leastHeadroom(verified, this.setter);
+    const name = `Change ${this.resistor.name} from ${formatQuantity(this.resistor.resistance, 'Ω')} to ${formatQuantity(value, 'Ω')}`;
+    return { title: headroom ? title(verified, this.request.diode, this.resistor, value, this.setter.transistor, headroom) : name, preferred: true, edits };
+  }
 }
 
 /** The sink's headroom after the fix: the least collector-emitter (drain-source) voltage where it is active, and at how many corners it is not. */
