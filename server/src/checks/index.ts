@@ -275,7 +275,11 @@ export function checkWith(
   const shown = applySuppressions(findings, circuit, directives, config)
     .map((finding) => withSeverity(finding, settings))
     .filter((finding): finding is Finding => finding !== undefined);
-  const told = tellOnce(shown, fixRequests.filter((entry) => shown.includes(entry.finding)), (name) => elementsByName.get(name));
+  const isLed = (name: string) => {
+    const element = elementsByName.get(name);
+    return element !== undefined && diodesByElement.get(element)?.kind === 'led';
+  };
+  const told = tellOnce(shown, fixRequests.filter((entry) => shown.includes(entry.finding)), (name) => elementsByName.get(name), isLed);
   return {
     findings: told.findings,
     diodes: diodes.map((diode) => diodeReport(diode, plans, solves)),

@@ -24,12 +24,13 @@ export function tellOnce(
   findings: readonly Finding[],
   fixRequests: readonly { finding: Finding; request: FixRequest }[],
   elementNamed: (name: string) => Element | undefined,
+  isLed: (name: string) => boolean,
 ): ToldOnce {
-  const causes = blameReversal(findings, fixRequests);
+  const causes = blameReversal(findings, fixRequests, isLed);
   return mergeInstances(causes.findings, causes.fixRequests, elementNamed);
 }
 
-function blameReversal(findings: readonly Finding[], fixRequests: readonly { finding: Finding; request: FixRequest }[]): ToldOnce {
+function blameReversal(findings: readonly Finding[], fixRequests: readonly { finding: Finding; request: FixRequest }[], isLed: (name: string) => boolean): ToldOnce {
   const reversed = new Set(findings.filter((finding) => finding.rule === REVERSED_RULE && finding.element !== undefined).map((finding) => finding.element!));
   if (reversed.size === 0) return { findings: [...findings], fixRequests: [...fixRequests] };
   const explained = new Set<Finding>();
@@ -37,7 +38,8 @@ function blameReversal(findings: readonly Finding[], fixRequests: readonly { fin
     if (finding.rule === REVERSED_RULE || finding.element === undefined || !reversed.has(finding.element)) return finding;
     // Fixes already attached (a fix provider's): only the ignore fix stays, which is never the preferred one.
     const fixes = finding.fixes.filter((fix) => !fix.preferred);
-    const copy: Finding = { ...finding, message: `${finding.message} ${finding.element} is reversed (reversed-diode): turned around it would not see this, and a guard diode would leave it dark.`, fixes };
+    const dark = isLed(finding.element) ? ', and a guard diode across it would leave it dark' : '';
+    const copy: Finding = { ...finding, message: `${finding.message} ${finding.element} is reversed (reversed-diode): turned around it would not see this${dark}.`, fixes };
     explained.add(finding);
     return copy;
   });
