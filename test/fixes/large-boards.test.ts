@@ -102,6 +102,8 @@ ${RED_LED}
     const reversed = checked.findings.filter((each) => each.rule === 'reversed-diode');
     expect(reversed.map((each) => each.element)).toEqual(['X1.D1', 'D9']);
     expect(reversed[0]!.message).toContain('The same holds for X2.D1');
+    // Its ignore directive goes above the subcircuit line, which every instance reads: the title says so.
+    expect(reversed[0]!.fixes.map((fix) => fix.title)).toContain('Ignore reversed-diode for D1 in every instance of its subcircuit (add a pnlint directive above its line)');
     for (const element of ['X1.D1', 'D9']) {
       const finding = reversed.find((each) => each.element === element)!;
       const flip = flipOf(finding);

@@ -3,6 +3,7 @@
 // (fixing everything must not silence everything), and it needs no re-simulation: the copy
 // is only elaborated, to see that the directive does suppress the finding.
 import type { Finding, Fix } from '../findings.js';
+import { leafName } from './names.js';
 import { elementNamed } from './readings.js';
 import { linesBefore } from './source-text.js';
 import type { FixSession } from './verify.js';
@@ -16,8 +17,10 @@ export function ignoreFix(session: FixSession, finding: Finding, rule: string = 
   const element = elementNamed(session.circuit, elementName);
   const located = element && session.files.statementOf(element);
   if (!located) return undefined;
+  // A line inside a subcircuit is every instance's line: the directive silences them all.
+  const what = element.instances.length > 0 ? `${leafName(element.name)} in every instance of its subcircuit` : element.name;
   return {
-    title: `Ignore ${rule} for ${element.name} (add a pnlint directive above its line)`,
+    title: `Ignore ${rule} for ${what} (add a pnlint directive above its line)`,
     preferred: false,
     edits: [linesBefore(located, [`*pnlint: ignore ${rule} -- `])],
   };
